@@ -1,0 +1,13 @@
+"""The canopy light engine: pure numpy functions, no web or pydantic imports.
+
+Modules, from the ground up:
+
+- :mod:`.distributions` angular intensity of an emitter, normalised to its flux;
+- :mod:`.scene` small frozen dataclasses describing emitters, receivers, boxes, walls;
+- :mod:`.emitters` quadrature nodes over bars, bar arrays and panels;
+- :mod:`.direct` direct irradiance on a receiver grid, with shadows and culling;
+- :mod:`.reflections` mirror images (specular walls) and radiosity (matt walls);
+- :mod:`.budget` a deterministic ray tally of where every emitted photon goes;
+- :mod:`.compute` the chain that turns a scene into per-zone PPFD maps;
+- :mod:`.metrics`, :mod:`.dli`, :mod:`.electrical` the figures a grower decides from.
+"""

@@ -1,0 +1,101 @@
+"""The chain: emitters, receiver grids, walls and boxes in; per-zone PPFD maps out.
+
+Each fixture's contribution to each grid is a pure function of that fixture,
+that grid, the walls and the boxes, and is memoised: when one fixture moves,
+only its own contribution is recomputed (the drag case).
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from functools import lru_cache
+
+import numpy as np
+
+from app.engine.direct import Patch, direct_patch
+from app.engine.reflections import diffuse_map, patch_irradiance, radiosity_operator, specular_map
+from app.engine.scene import Box, Emitter, Enclosure, Grid
+
+
+class SceneError(ValueError):
+    """Geometry the engine refuses before computing anything."""
+
+
+@dataclass
+class ZoneLight:
+    grid: Grid
+    direct: np.ndarray  # (ny, nx) µmol m⁻² s⁻¹
+    reflected: np.ndarray  # (ny, nx) µmol m⁻² s⁻¹
+
+    @property
+    def ppfd(self) -> np.ndarray:
+        return self.direct + self.reflected
+
+
+def canopy_slabs(grids: tuple[Grid, ...]) -> tuple[Box, ...]:
+    """Canopy zones as thin opaque slabs: wall light does not pass through a bench of plants."""
+    return tuple(Box(g.x0_m, g.y0_m, g.z_m - 1e-3, g.x0_m + g.width_m, g.y0_m + g.length_m, g.z_m) for g in grids)
+
+
+def check_scene(emitters, grids, boxes) -> None:
+    """Refuse emitters that sit in a canopy, inside a box, or have no size or flux."""
+    for e in emitters:
+        if e.flux_umol_s < 0 or not np.isfinite(e.flux_umol_s):
+            raise SceneError(f"emitter {e.id}: flux must be a finite number >= 0")
+        if e.shape != "point" and e.length_m <= 0:
+            raise SceneError(f"emitter {e.id}: a {e.shape} needs a length > 0")
+        if e.shape == "panel" and e.width_m <= 0:
+            raise SceneError(f"emitter {e.id}: a panel needs a width > 0")
+        for g in grids:
+            inside = g.x0_m <= e.x_m <= g.x0_m + g.width_m and g.y0_m <= e.y_m <= g.y0_m + g.length_m
+            if inside and abs(e.z_m - g.z_m) < 1e-9:
+                raise SceneError(f"emitter {e.id} sits in the canopy of {g.id}")
+        for b in boxes:
+            if b.x0_m < e.x_m < b.x1_m and b.y0_m < e.y_m < b.y1_m and b.z0_m < e.z_m < b.z1_m:
+                raise SceneError(f"emitter {e.id} is inside an obstacle")
+
+
+@lru_cache(maxsize=8192)
+def fixture_on_grid(emitter: Emitter, grid: Grid, enc: Enclosure, boxes: tuple[Box, ...]):
+    """(direct Patch or None, specular image map or None) of one emitter on one grid."""
+    direct = direct_patch(emitter, grid, boxes)
+    spec = specular_map(emitter, grid, enc, boxes) if enc.finish == "specular" else None
+    return direct, spec
+
+
+@lru_cache(maxsize=8192)
+def _fixture_on_patches(emitter: Emitter, enc: Enclosure, boxes: tuple[Box, ...]) -> np.ndarray:
+    e = patch_irradiance(emitter, enc, boxes)
+    e.setflags(write=False)
+    return e
+
+
+def compute_scene(
+    emitters: tuple[Emitter, ...], grids: tuple[Grid, ...], enc: Enclosure, boxes: tuple[Box, ...] = ()
+) -> list[ZoneLight]:
+    """Direct and reflected PPFD on every grid."""
+    check_scene(emitters, grids, boxes)
+    out = []
+    exitance = None
+    if enc.finish == "diffuse" and enc.reflectance > 0 and emitters:
+        blockers = boxes + canopy_slabs(grids)
+        e_patch = sum(_fixture_on_patches(e, enc, blockers) for e in emitters)
+        exitance = radiosity_operator(enc, blockers) @ e_patch
+    for g in grids:
+        direct = np.zeros((g.ny, g.nx), dtype=np.float32)
+        reflected = np.zeros_like(direct)
+        for e in emitters:
+            patch, spec = fixture_on_grid(e, g, enc, boxes)
+            if isinstance(patch, Patch):
+                patch.add_into(direct)
+            if spec is not None:
+                reflected += spec
+        if exitance is not None:
+            reflected += diffuse_map(enc, g, exitance)
+        out.append(ZoneLight(g, direct, reflected))
+    return out
+
+
+def clear_caches() -> None:
+    fixture_on_grid.cache_clear()
+    _fixture_on_patches.cache_clear()

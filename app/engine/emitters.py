@@ -1,0 +1,78 @@
+"""Quadrature nodes over extended emitters.
+
+An extended emitter (bar, bar array, panel) is integrated over its length or
+area by composite Gauss-Legendre quadrature: each small element emits with the
+fixture's angular distribution. Segments are kept no longer than
+``SEGMENT_PER_DISTANCE`` × the nearest receiver distance, which holds the error
+against the closed-form configuration factor under 0.5 % (tests/engine/test_direct.py).
+Beyond about five times its largest dimension an emitter is a point
+(common practice in photometry, no source).
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+from app.engine.scene import Emitter
+
+SEGMENT_PER_DISTANCE = 0.5
+_GL_NODES = 2
+MAX_SEGMENTS = 48
+POINT_BEYOND_SIZES = 5.0
+
+
+def _composite_gauss_legendre(length: float, segments: int) -> tuple[np.ndarray, np.ndarray]:
+    """Nodes on [-L/2, L/2] and weights summing to 1 (segments = 0: one midpoint node)."""
+    if length <= 0 or segments < 1:
+        return np.zeros(1), np.ones(1)
+    x, w = np.polynomial.legendre.leggauss(_GL_NODES)
+    edges = np.linspace(-length / 2, length / 2, segments + 1)
+    half = 0.5 * (edges[1:] - edges[:-1])
+    mid = 0.5 * (edges[1:] + edges[:-1])
+    nodes = (mid[:, None] + half[:, None] * x[None, :]).ravel()
+    weights = (half[:, None] * w[None, :]).ravel() / length
+    return nodes, weights
+
+
+THIN_PER_DISTANCE = 0.1
+
+
+def _segments(extent: float, nearest_m: float) -> int:
+    # An extent under a tenth of the distance needs no quadrature across it: the
+    # midpoint rule's error there is below (0.1)²/24 ≈ 0.04 %.
+    if extent <= THIN_PER_DISTANCE * nearest_m:
+        return 0
+    return int(np.clip(np.ceil(extent / (SEGMENT_PER_DISTANCE * max(nearest_m, 1e-6))), 1, MAX_SEGMENTS))
+
+
+def local_nodes(emitter: Emitter, nearest_m: float) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """Node offsets (u along length, v along width) in the emitter frame and flux weights (sum 1).
+
+    ``nearest_m`` is the shortest distance from the emitter to any receiver point it lights.
+    """
+    if emitter.shape == "point" or nearest_m > POINT_BEYOND_SIZES * emitter.largest_dimension_m:
+        return np.zeros(1), np.zeros(1), np.ones(1)
+    u, wu = _composite_gauss_legendre(emitter.length_m, _segments(emitter.length_m, nearest_m))
+    if emitter.shape == "panel":
+        v, wv = _composite_gauss_legendre(emitter.width_m, _segments(emitter.width_m, nearest_m))
+    elif emitter.shape == "bar_array":
+        n = emitter.bar_count
+        pitch = (emitter.width_m - emitter.bar_width_m) / (n - 1)
+        centres = -0.5 * (emitter.width_m - emitter.bar_width_m) + pitch * np.arange(n)
+        vb, wb = _composite_gauss_legendre(emitter.bar_width_m, _segments(emitter.bar_width_m, nearest_m))
+        v = (centres[:, None] + vb[None, :]).ravel()
+        wv = np.repeat(np.full(n, 1.0 / n), vb.size) * np.tile(wb, n)
+    else:  # bar
+        v, wv = _composite_gauss_legendre(emitter.width_m, _segments(emitter.width_m, nearest_m))
+    uu, vv = np.meshgrid(u, v, indexing="ij")
+    ww = np.outer(wu, wv)
+    return uu.ravel(), vv.ravel(), ww.ravel()
+
+
+def world_nodes(emitter: Emitter, nearest_m: float) -> tuple[np.ndarray, np.ndarray]:
+    """Node positions (N, 3) in room coordinates and their flux [µmol/s] (N,)."""
+    u, v, w = local_nodes(emitter, nearest_m)
+    a = np.radians(emitter.rotation_deg)
+    c, s = np.cos(a), np.sin(a)
+    xyz = np.column_stack([emitter.x_m + c * u - s * v, emitter.y_m + s * u + c * v, np.full(u.size, emitter.z_m)])
+    return xyz, w * emitter.flux_umol_s

@@ -1,0 +1,120 @@
+"""Small frozen dataclasses that describe a scene to the engine. Units: metres, µmol/s."""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+from app.engine.distributions import Distribution
+
+
+@dataclass(frozen=True)
+class Emitter:
+    """A downward-facing fixture. (x_m, y_m, z_m) is the centre of its emitting face.
+
+    shape : 'point', 'bar', 'bar_array' or 'panel'.
+    length_m : along the emitter's local x axis; width_m along its local y axis.
+    bar_count, bar_width_m : for 'bar_array', bars spread evenly across width_m.
+    flux_umol_s : photons emitted, after dimming [µmol/s].
+    """
+
+    id: str
+    x_m: float
+    y_m: float
+    z_m: float
+    flux_umol_s: float
+    distribution: Distribution
+    shape: str = "point"
+    length_m: float = 0.0
+    width_m: float = 0.0
+    bar_count: int = 1
+    bar_width_m: float = 0.0
+    rotation_deg: float = 0.0
+
+    @property
+    def largest_dimension_m(self) -> float:
+        return float(np.hypot(self.length_m, self.width_m))
+
+
+@dataclass(frozen=True)
+class Grid:
+    """A level receiver grid facing up: points x0 + i·s, y0 + j·s within the rectangle, at z_m."""
+
+    id: str
+    x0_m: float
+    y0_m: float
+    width_m: float
+    length_m: float
+    z_m: float
+    spacing_m: float
+
+    @property
+    def nx(self) -> int:
+        return int(np.floor(self.width_m / self.spacing_m + 1e-9)) + 1
+
+    @property
+    def ny(self) -> int:
+        return int(np.floor(self.length_m / self.spacing_m + 1e-9)) + 1
+
+    @property
+    def x_m(self) -> np.ndarray:
+        return self._axis(self.x0_m, self.width_m, self.nx)
+
+    @property
+    def y_m(self) -> np.ndarray:
+        return self._axis(self.y0_m, self.length_m, self.ny)
+
+    def _axis(self, start: float, extent: float, n: int) -> np.ndarray:
+        # Points spaced by s and centred in the rectangle, so both edges get equal margins.
+        used = (n - 1) * self.spacing_m
+        return start + 0.5 * (extent - used) + self.spacing_m * np.arange(n)
+
+    @property
+    def cell_area_m2(self) -> np.ndarray:
+        """Area each point stands for (its Voronoi cell clipped to the rectangle)."""
+        return np.outer(
+            self._cell_len(self.y_m, self.y0_m, self.length_m), self._cell_len(self.x_m, self.x0_m, self.width_m)
+        )
+
+    @staticmethod
+    def _cell_len(pts: np.ndarray, start: float, extent: float) -> np.ndarray:
+        if pts.size == 1:
+            return np.array([extent])
+        mid = 0.5 * (pts[1:] + pts[:-1])
+        edges = np.concatenate([[start], mid, [start + extent]])
+        return np.diff(edges)
+
+
+@dataclass(frozen=True)
+class Box:
+    """An axis-aligned obstacle that blocks light."""
+
+    x0_m: float
+    y0_m: float
+    z0_m: float
+    x1_m: float
+    y1_m: float
+    z1_m: float
+
+
+@dataclass(frozen=True)
+class Enclosure:
+    """The room's walls: a box 0..width × 0..length × 0..height.
+
+    finish : 'specular' (mirror images), 'diffuse' (radiosity) or 'absorbing'.
+    reflectance : PAR reflectance of closed walls and ceiling.
+    open_sides : subset of {'front' (y=0), 'back' (y=length), 'left' (x=0), 'right' (x=width)}.
+    """
+
+    width_m: float
+    length_m: float
+    height_m: float
+    finish: str = "absorbing"
+    reflectance: float = 0.0
+    open_sides: frozenset[str] = frozenset()
+
+    def wall_reflectance(self, side: str) -> float:
+        if self.finish == "absorbing" or side in self.open_sides:
+            return 0.0
+        return self.reflectance

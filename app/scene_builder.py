@@ -1,0 +1,77 @@
+"""Turns the pydantic room model into the engine's plain dataclasses."""
+
+from __future__ import annotations
+
+import hashlib
+import json
+from dataclasses import dataclass
+
+from app.engine import distributions as dist
+from app.engine.scene import Box, Emitter, Enclosure, Grid
+from app.models import Beam, FixtureType, Room
+
+
+@dataclass(frozen=True)
+class EngineScene:
+    emitters: tuple[Emitter, ...]
+    grids: tuple[Grid, ...]
+    enclosure: Enclosure
+    boxes: tuple[Box, ...]
+
+
+_dist_cache: dict[str, dist.Distribution] = {}
+
+
+def distribution_for(beam: Beam) -> dist.Distribution:
+    key = hashlib.sha1(json.dumps(beam.model_dump(mode="json"), sort_keys=True).encode()).hexdigest()
+    if key not in _dist_cache:
+        if beam.kind == "lambertian":
+            d = dist.lambertian()
+        elif beam.kind == "cosine_power":
+            d = dist.cosine_power(float(dist.cosine_exponent_from_beam_angle(beam.beam_angle_deg)))
+        else:
+            d = dist.tabulated(beam.polar_deg, beam.azimuth_deg, beam.relative_intensity, key=key)
+        if len(_dist_cache) > 256:
+            _dist_cache.clear()
+        _dist_cache[key] = d
+    return _dist_cache[key]
+
+
+def emitter_for(
+    fixture_id: str, t: FixtureType, x_m: float, y_m: float, z_m: float, rotation_deg: float, dimming_pct: float
+) -> Emitter:
+    g = t.geometry
+    return Emitter(
+        id=fixture_id,
+        x_m=x_m,
+        y_m=y_m,
+        z_m=z_m,
+        flux_umol_s=t.ppf_umol_s * dimming_pct / 100.0,
+        distribution=distribution_for(t.beam),
+        shape=g.kind,
+        length_m=g.length_m,
+        width_m=g.bar_width_m if g.kind == "bar" else g.width_m,
+        bar_count=g.bar_count,
+        bar_width_m=g.bar_width_m,
+        rotation_deg=rotation_deg,
+    )
+
+
+def build_scene(room: Room) -> EngineScene:
+    types = {t.id: t for t in room.fixture_types}
+    emitters = tuple(
+        emitter_for(f.id, types[f.type_id], f.x_m, f.y_m, f.hanging_height_m, f.rotation_deg, f.dimming_pct)
+        for f in room.fixtures
+        if f.on
+    )
+    grids = tuple(
+        Grid(z.id, z.x_m, z.y_m, z.width_m, z.length_m, z.canopy_height_m, room.grid_spacing_m) for z in room.zones
+    )
+    wf = room.wall_finish
+    enclosure = Enclosure(
+        room.width_m, room.length_m, room.height_m, wf.kind, wf.reflectance, frozenset(room.open_sides)
+    )
+    boxes = tuple(
+        Box(o.x_m, o.y_m, o.z_m, o.x_m + o.width_m, o.y_m + o.length_m, o.z_m + o.height_m) for o in room.obstacles
+    )
+    return EngineScene(emitters, grids, enclosure, boxes)

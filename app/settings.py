@@ -1,0 +1,32 @@
+"""Server settings: where rooms live, where the server listens."""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from pathlib import Path
+
+from platformdirs import user_data_dir
+
+LOCAL_HOSTS = frozenset({"127.0.0.1", "localhost", "::1", "[::1]"})
+PROJECT_ROOT = Path(__file__).resolve().parent.parent
+
+
+def default_data_dir() -> Path:
+    return Path(user_data_dir("leafcast", appauthor=False))
+
+
+@dataclass
+class Settings:
+    data_dir: Path = field(default_factory=default_data_dir)
+    host: str = "127.0.0.1"
+    port: int = 8000
+    samples_dir: Path | None = PROJECT_ROOT / "sample_rooms"
+    seed_samples: bool = True
+    extra_allowed_hosts: frozenset[str] = frozenset()
+
+    @property
+    def allowed_hosts(self) -> frozenset[str]:
+        hosts = set(LOCAL_HOSTS) | set(self.extra_allowed_hosts)
+        if self.host not in ("0.0.0.0", "::"):
+            hosts.add(self.host)
+        return frozenset(hosts)
