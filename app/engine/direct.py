@@ -211,6 +211,6 @@ def direct_patch(emitter: Emitter, grid: Grid, boxes: tuple[Box, ...] = (), dtyp
         return Patch(i0, j0, st)
     gx, gy = np.meshgrid(xs[i0:i1], ys[j0:j1])
     pts = np.column_stack([gx.ravel(), gy.ravel(), np.full(gx.size, grid.z_m)])
-    nodes, flux = world_nodes(emitter, nearest_distance_m(emitter, grid))
+    nodes, flux = world_nodes(emitter, nearest_distance_m(emitter, grid), shadowed=True)
     e = irradiance_from_nodes(pts, nodes, flux, emitter.distribution, emitter.rotation_deg, boxes=near, dtype=dtype)
     return Patch(i0, j0, e.reshape(gx.shape))

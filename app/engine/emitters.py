@@ -16,6 +16,7 @@ import numpy as np
 from app.engine.scene import Emitter
 
 SEGMENT_PER_DISTANCE = 0.5
+SHADOW_SUBDIVISION = 6  # finer nodes where a box can shade: penumbrae need them (tests/engine/test_reflections.py)
 _GL_NODES = 2
 MAX_SEGMENTS = 48
 POINT_BEYOND_SIZES = 5.0
@@ -38,6 +39,7 @@ THIN_PER_DISTANCE = 0.1
 
 
 def _segments(extent: float, nearest_m: float) -> int:
+    """Segments so that each is at most SEGMENT_PER_DISTANCE × the nearest receiver distance."""
     # An extent under a tenth of the distance needs no quadrature across it: the
     # midpoint rule's error there is below (0.1)²/24 ≈ 0.04 %.
     if extent <= THIN_PER_DISTANCE * nearest_m:
@@ -45,11 +47,14 @@ def _segments(extent: float, nearest_m: float) -> int:
     return int(np.clip(np.ceil(extent / (SEGMENT_PER_DISTANCE * max(nearest_m, 1e-6))), 1, MAX_SEGMENTS))
 
 
-def local_nodes(emitter: Emitter, nearest_m: float) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+def local_nodes(emitter: Emitter, nearest_m: float, shadowed: bool = False) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
     """Node offsets (u along length, v along width) in the emitter frame and flux weights (sum 1).
 
-    ``nearest_m`` is the shortest distance from the emitter to any receiver point it lights.
+    ``nearest_m`` is the shortest distance from the emitter to any receiver point it lights;
+    ``shadowed`` asks for SHADOW_SUBDIVISION times finer nodes, to resolve penumbrae.
     """
+    if shadowed:
+        nearest_m = nearest_m / SHADOW_SUBDIVISION
     if emitter.shape == "point" or nearest_m > POINT_BEYOND_SIZES * emitter.largest_dimension_m:
         return np.zeros(1), np.zeros(1), np.ones(1)
     u, wu = _composite_gauss_legendre(emitter.length_m, _segments(emitter.length_m, nearest_m))
@@ -69,9 +74,9 @@ def local_nodes(emitter: Emitter, nearest_m: float) -> tuple[np.ndarray, np.ndar
     return uu.ravel(), vv.ravel(), ww.ravel()
 
 
-def world_nodes(emitter: Emitter, nearest_m: float) -> tuple[np.ndarray, np.ndarray]:
+def world_nodes(emitter: Emitter, nearest_m: float, shadowed: bool = False) -> tuple[np.ndarray, np.ndarray]:
     """Node positions (N, 3) in room coordinates and their flux [µmol/s] (N,)."""
-    u, v, w = local_nodes(emitter, nearest_m)
+    u, v, w = local_nodes(emitter, nearest_m, shadowed)
     a = np.radians(emitter.rotation_deg)
     c, s = np.cos(a), np.sin(a)
     xyz = np.column_stack([emitter.x_m + c * u - s * v, emitter.y_m + s * u + c * v, np.full(u.size, emitter.z_m)])

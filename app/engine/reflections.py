@@ -131,7 +131,7 @@ def specular_map(emitter: Emitter, grid: Grid, enc: Enclosure, boxes: tuple[Box,
                 x_m=float(mirror_coordinate(emitter.x_m, i, enc.width_m)),
                 y_m=float(mirror_coordinate(emitter.y_m, j, enc.length_m)),
             )
-            nodes, flux = world_nodes(emitter, nearest_distance_m(img, grid))
+            nodes, flux = world_nodes(emitter, nearest_distance_m(img, grid), shadowed=bool(bxs))
             e = irradiance_from_nodes(
                 fine,
                 _mirror_nodes(nodes, i, j, enc),
