@@ -23,6 +23,9 @@ SUFFIX = ".json"
 PREV_SUFFIX = ".prev.json"
 
 
+_ID_RE = re.compile(r"[a-z0-9]+(?:-[a-z0-9]+)*")
+
+
 class RoomNotFound(KeyError):
     pass
 
@@ -44,7 +47,8 @@ class RoomSummary:
 
 def slugify(text: str, max_len: int = 48) -> str:
     """A file-safe id from any string: ascii letters, digits and '-', never empty, never a path."""
-    norm = unicodedata.normalize("NFKD", text).encode("ascii", "ignore").decode("ascii")
+    norm = "".join(c if c.isascii() else ("" if unicodedata.combining(c) else "-")
+                   for c in unicodedata.normalize("NFKD", text))
     slug = re.sub(r"[^a-z0-9]+", "-", norm.lower()).strip("-")[:max_len].strip("-")
     return slug or "room"
 
@@ -57,7 +61,7 @@ class RoomStore:
 
     # -- paths ---------------------------------------------------------
     def _path(self, room_id: str, suffix: str = SUFFIX) -> Path:
-        if slugify(room_id) != room_id:
+        if not _ID_RE.fullmatch(room_id):
             raise RoomNotFound(room_id)
         path = (self.rooms_dir / f"{room_id}{suffix}").resolve()
         if path.parent != self.rooms_dir.resolve():  # belt and braces: never leave the folder

@@ -25,6 +25,7 @@ from app.analysis import Region, analyse
 from app.drawings import heatmap_svg
 from app.engine.compute import SceneError
 from app.library import crop_library, fixture_library
+from app.middleware import BodyLimit, LocalOnly
 from app.models import RoomFile
 from app.roomfile import Problem, RoomFileError, dump_room_file, parse_room_file, to_json_bytes
 from app.settings import PROJECT_ROOT, Settings
@@ -120,6 +121,8 @@ def create_app(settings: Settings | None = None) -> FastAPI:
         description="Lay out grow-room lighting: canopy PPFD and DLI maps, coverage, energy and circuits.",
     )
     app.state.settings, app.state.store = settings, store
+    app.add_middleware(BodyLimit)
+    app.add_middleware(LocalOnly, allowed_hosts=settings.allowed_hosts)
     templates = Jinja2Templates(directory=str(TEMPLATES))
     templates.env.globals["version"] = __version__
     templates.env.filters["length_fmt"] = lambda m, system, fine=False: format_length(m, system, fine)
