@@ -552,12 +552,9 @@
   // ---------------------------------------------------------------- units
   for (const radio of document.querySelectorAll("input[name=units]")) {
     radio.addEventListener("change", () => {
+      // A view setting only: stored values stay SI and the room file is not touched.
       state.units = radio.value;
-      // The preference travels with the file, but switching it must not move anything: only this field changes.
-      state.doc.room.display_units = radio.value;
-      state.dirty = true;
-      scheduleSave();
-      render(); renderZones(true); renderObstacles(); renderCircuits(); renderResults();
+      render(); renderZones(); renderObstacles(); renderCircuits(); renderResults();
     });
   }
 

@@ -1,0 +1,133 @@
+"""The editor in a real Chromium against a real uvicorn: drag, undo, units, bad files, conflicts."""
+
+import json
+
+import pytest
+from numpy.testing import assert_allclose
+
+from tests.browser.helpers import api, drag_fixture, fresh_room, wait_analysis_idle, wait_saved
+from tests.conftest import ROOT
+
+pytestmark = pytest.mark.browser
+
+
+def shown_avg(page) -> float:
+    return float(page.locator('[data-figure="ppfd-avg"]').first.inner_text())
+
+
+def map_values(page):
+    return page.evaluate("() => document.getElementById('map').data[0].z")
+
+
+def test_drag_moves_fixture_updates_map_and_undo_restores(live_server, page, artifacts):
+    room = fresh_room(live_server, name="Drag test tent")
+    before = api(live_server, f"/api/rooms/{room}")
+    page.goto(f"{live_server}/rooms/{room}")
+    wait_analysis_idle(page)
+    z0, avg0 = map_values(page), shown_avg(page)
+    f0 = before["room"]["fixtures"][0]
+    drag_fixture(page, "F1", 60, -40)
+    rev = wait_saved(page, before["revision"])
+    wait_analysis_idle(page)
+    after = api(live_server, f"/api/rooms/{room}")
+    f1 = after["room"]["fixtures"][0]
+    # Right on screen is +x; up on screen is towards the back wall, +y.
+    assert f1["x_m"] > f0["x_m"] + 0.05 and f1["y_m"] > f0["y_m"] + 0.03, (f0, f1)
+    z1 = map_values(page)
+    assert z1 != z0
+    # The figure shown equals the engine's own answer for the stored position.
+    engine = api(live_server, f"/api/rooms/{room}/analysis")
+    assert_allclose(shown_avg(page), round(engine["zones"][0]["ppfd"]["avg"]), atol=0.5)
+    assert z1 == engine["zones"][0]["grid"]["ppfd"]
+    page.screenshot(path=str(artifacts / "editor-after-drag.png"))
+    # Undo restores the position, the map and the figures.
+    page.locator("#plan").focus()
+    page.keyboard.press("Control+z")
+    wait_saved(page, rev)
+    wait_analysis_idle(page)
+    restored = api(live_server, f"/api/rooms/{room}")["room"]["fixtures"][0]
+    assert (restored["x_m"], restored["y_m"]) == (f0["x_m"], f0["y_m"])
+    assert map_values(page) == z0 and shown_avg(page) == avg0
+    assert page.errors == []
+
+
+def test_unit_switch_changes_what_is_shown_not_the_file(live_server, page, artifacts):
+    room = fresh_room(live_server, name="Units test tent")
+    before = api(live_server, f"/api/rooms/{room}")
+    page.goto(f"{live_server}/rooms/{room}")
+    wait_analysis_idle(page)
+    page.locator('[data-fixture-id="F1"]').click()
+    inches = page.locator("#f-x").input_value()
+    room_w_imperial = page.locator("#r-w").input_value()
+    page.locator("input[name=units][value=metric]").check()
+    cm = page.locator("#f-x").input_value()
+    assert_allclose(float(cm), float(inches) * 2.54, rtol=1e-3)
+    assert page.locator("#r-w").input_value() != room_w_imperial
+    assert "cm" in page.locator("#plan").inner_html() or " m" in page.locator("#plan").inner_html()
+    page.screenshot(path=str(artifacts / "editor-metric.png"))
+    page.wait_for_timeout(1500)  # longer than the autosave delay
+    assert api(live_server, f"/api/rooms/{room}") == before
+
+
+def test_corrupt_file_shows_error_and_changes_nothing(live_server, page, artifacts, tmp_path):
+    room = fresh_room(live_server, name="Corrupt import test")
+    before_room = api(live_server, f"/api/rooms/{room}")
+    before_list = api(live_server, "/api/rooms")
+    page.goto(f"{live_server}/rooms/{room}")
+    wait_analysis_idle(page)
+    bad = tmp_path / "bad.leafcast.json"
+    doc = json.loads((ROOT / "sample_rooms" / "hobby-tent-peppers.json").read_text())
+    doc["room"]["fixtures"][0]["dimming_pct"] = 500
+    bad.write_text(json.dumps(doc)[:-40])  # truncated as well as wrong
+    page.set_input_files("#open-file", str(bad))
+    page.wait_for_selector("#banner:not([hidden])")
+    text = page.locator("#banner").inner_text()
+    assert "was not opened" in text and "unchanged" in text
+    page.screenshot(path=str(artifacts / "editor-bad-file.png"))
+    assert api(live_server, f"/api/rooms/{room}") == before_room
+    assert api(live_server, "/api/rooms") == before_list
+
+
+def test_two_pages_produce_a_visible_conflict(live_server, browser, artifacts):
+    room = fresh_room(live_server, name="Conflict test tent")
+    start = api(live_server, f"/api/rooms/{room}")["revision"]
+    ctx = browser.new_context(viewport={"width": 1280, "height": 800})
+    a, b = ctx.new_page(), ctx.new_page()
+    for p in (a, b):
+        p.goto(f"{live_server}/rooms/{room}")
+        wait_analysis_idle(p)
+    drag_fixture(a, "F1", 40, 0)
+    wait_saved(a, start)
+    drag_fixture(b, "F2", -30, 0)
+    b.wait_for_selector("#banner:not([hidden])", timeout=15000)
+    assert "Someone else saved" in b.locator("#banner").inner_text()
+    assert "Conflict" in b.locator("#save-status").inner_text()
+    b.screenshot(path=str(artifacts / "editor-conflict.png"))
+    stored = api(live_server, f"/api/rooms/{room}")
+    a_state = a.evaluate("() => window.leafcast.doc.room.fixtures[0].x_m")
+    assert stored["room"]["fixtures"][0]["x_m"] == a_state  # page A's work is kept
+    # Page B's work is not lost either: it is still on screen, and saving it is the grower's choice.
+    b_state = b.evaluate("() => window.leafcast.doc.room.fixtures[1].x_m")
+    assert b_state != stored["room"]["fixtures"][1]["x_m"]
+    b.get_by_role("button", name="Save mine over theirs").click()
+    wait_saved(b, stored["revision"])
+    assert api(live_server, f"/api/rooms/{room}")["room"]["fixtures"][1]["x_m"] == b_state
+    ctx.close()
+
+
+def test_keyboard_nudge_and_add_fixture(live_server, page):
+    room = fresh_room(live_server, name="Keyboard test tent")
+    before = api(live_server, f"/api/rooms/{room}")
+    page.goto(f"{live_server}/rooms/{room}")
+    wait_analysis_idle(page)
+    page.locator('[data-fixture-id="F2"]').click()
+    page.keyboard.press("ArrowLeft")
+    page.keyboard.press("ArrowLeft")
+    rev = wait_saved(page, before["revision"])
+    moved = api(live_server, f"/api/rooms/{room}")["room"]["fixtures"][1]
+    assert_allclose(moved["x_m"], before["room"]["fixtures"][1]["x_m"] - 2 * 0.0254, atol=1e-4)
+    page.select_option("#add-type", "spot-90")
+    page.locator("#add-fixture").click()
+    wait_saved(page, rev)
+    doc = api(live_server, f"/api/rooms/{room}")
+    assert len(doc["room"]["fixtures"]) == 3 and any(t["id"] == "spot-90" for t in doc["room"]["fixture_types"])
