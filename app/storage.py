@@ -47,8 +47,9 @@ class RoomSummary:
 
 def slugify(text: str, max_len: int = 48) -> str:
     """A file-safe id from any string: ascii letters, digits and '-', never empty, never a path."""
-    norm = "".join(c if c.isascii() else ("" if unicodedata.combining(c) else "-")
-                   for c in unicodedata.normalize("NFKD", text))
+    norm = "".join(
+        c if c.isascii() else ("" if unicodedata.combining(c) else "-") for c in unicodedata.normalize("NFKD", text)
+    )
     slug = re.sub(r"[^a-z0-9]+", "-", norm.lower()).strip("-")[:max_len].strip("-")
     return slug or "room"
 

@@ -17,8 +17,13 @@ import pytest
 ROOT = Path(__file__).resolve().parent.parent
 SAMPLES = sorted((ROOT / "sample_rooms").glob("*.json"))
 CHROMIUM_FLAGS = [
-    "--no-sandbox", "--disable-gpu", "--disable-background-networking", "--disable-component-update",
-    "--disable-sync", "--no-first-run", "--disable-quic",
+    "--no-sandbox",
+    "--disable-gpu",
+    "--disable-background-networking",
+    "--disable-component-update",
+    "--disable-sync",
+    "--no-first-run",
+    "--disable-quic",
 ]
 ARTIFACTS = ROOT / "test-artifacts"
 
@@ -57,7 +62,9 @@ def live_server(tmp_path_factory):
     port = _free_port()
     proc = subprocess.Popen(
         [sys.executable, "-m", "app", "serve", "--host", "127.0.0.1", "--port", str(port), "--data-dir", str(data)],
-        cwd=ROOT, stdout=subprocess.PIPE, stderr=subprocess.STDOUT,
+        cwd=ROOT,
+        stdout=subprocess.PIPE,
+        stderr=subprocess.STDOUT,
     )
     base = f"http://127.0.0.1:{port}"
     deadline = time.time() + 30

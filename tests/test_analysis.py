@@ -25,7 +25,10 @@ def test_crop_targets_quote_their_sources():
     assert crops["lettuce"].stages["vegetative"].dli_max == 17
     assert "Cornell" in crops["lettuce"].stages["vegetative"].source
     # Microgreens grown at 6, 12 and 18 (Craver et al. 2017, J. Amer. Soc. Hort. Sci. 142(1):3-12).
-    assert (crops["microgreens"].stages["vegetative"].dli_min, crops["microgreens"].stages["vegetative"].dli_max) == (6, 18)
+    assert (crops["microgreens"].stages["vegetative"].dli_min, crops["microgreens"].stages["vegetative"].dli_max) == (
+        6,
+        18,
+    )
     # Tomato injured by continuous light, pepper and lettuce not (Velez-Ramirez et al. 2014).
     assert crops["tomato"].continuous_light_injury and not crops["pepper"].continuous_light_injury
     assert not crops["lettuce"].continuous_light_injury
@@ -33,8 +36,20 @@ def test_crop_targets_quote_their_sources():
         assert c.source or all(s.source for s in c.stages.values())
         for s in c.stages.values():
             assert s.source, f"{c.id} has a stage without a source"
-    required = {"lettuce", "leafy_greens", "microgreens", "basil", "herbs", "seedlings", "tomato", "pepper",
-                "cucumber", "strawberry", "bedding_plants", "custom"}
+    required = {
+        "lettuce",
+        "leafy_greens",
+        "microgreens",
+        "basil",
+        "herbs",
+        "seedlings",
+        "tomato",
+        "pepper",
+        "cucumber",
+        "strawberry",
+        "bedding_plants",
+        "custom",
+    }
     assert required <= set(crops)
 
 
@@ -127,8 +142,10 @@ def test_overloaded_circuit_warns():
     assert not next(c for c in r["circuits"] if c["name"] == "A")["ok"]
 
 
-@pytest.mark.parametrize("field, value", [("photoperiod_h", -1), ("photoperiod_h", 25),
-                                          ("electricity_price_per_kwh", -0.1), ("supply_voltage_v", 0)])
+@pytest.mark.parametrize(
+    "field, value",
+    [("photoperiod_h", -1), ("photoperiod_h", 25), ("electricity_price_per_kwh", -0.1), ("supply_voltage_v", 0)],
+)
 def test_bad_schedule_refused(field, value):
     from app.roomfile import RoomFileError
 
@@ -141,6 +158,7 @@ def test_bad_schedule_refused(field, value):
 
 def test_regions_compare_centre_and_edge():
     from app.analysis import Region
+
     doc = sample_doc("basement-two-benches")
     r = run(doc, regions=(Region("centre", 0.5, 1.5, 0.5, 0.6), Region("front end", 0.3, 0.3, 0.9, 0.2)))
     centre = next(x for x in r["regions"] if x["name"] == "centre")
@@ -151,5 +169,8 @@ def test_regions_compare_centre_and_edge():
 def test_light_use_efficiency_is_canopy_share():
     r = run(sample_doc("hobby-tent-peppers"), with_budget=True)
     assert 0.9 < r["energy"]["canopy_share_of_emitted"] <= 1.0
-    assert_allclose(r["energy"]["canopy_share_of_emitted"], r["budget"]["zones_umol_s"]["tent-floor"] / r["emitted_umol_s"],
-                    rtol=0.01)
+    assert_allclose(
+        r["energy"]["canopy_share_of_emitted"],
+        r["budget"]["zones_umol_s"]["tent-floor"] / r["emitted_umol_s"],
+        rtol=0.01,
+    )

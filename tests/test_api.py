@@ -72,8 +72,9 @@ def test_hostile_files(client, tent_doc):
         "not json": b"{{{{",
         "array": b"[]",
         "wrong type": json.dumps({**tent_doc, "room": {**tent_doc["room"], "zones": "many"}}).encode(),
-        "huge array": json.dumps({**tent_doc, "room": {**tent_doc["room"],
-                                                        "fixtures": [tent_doc["room"]["fixtures"][0]] * 6000}}).encode(),
+        "huge array": json.dumps(
+            {**tent_doc, "room": {**tent_doc["room"], "fixtures": [tent_doc["room"]["fixtures"][0]] * 6000}}
+        ).encode(),
         "missing type": json.dumps({**tent_doc, "room": {**tent_doc["room"], "fixture_types": []}}).encode(),
         "newer": json.dumps({**tent_doc, "version": 99}).encode(),
     }
@@ -97,8 +98,11 @@ def test_foreign_host_refused(client):
 
 
 def test_analysis_of_a_posted_room(client, tent_doc):
-    r = client.post("/api/analyze", content=json.dumps(tent_doc), params={"budget": "true",
-                    "region": ["centre,0.45,0.45,0.3,0.3", "edge,0,0,0.2,1.2"]})
+    r = client.post(
+        "/api/analyze",
+        content=json.dumps(tent_doc),
+        params={"budget": "true", "region": ["centre,0.45,0.45,0.3,0.3", "edge,0,0,0.2,1.2"]},
+    )
     assert r.status_code == 200
     a = r.json()
     z = a["zones"][0]

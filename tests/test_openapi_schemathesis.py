@@ -11,7 +11,9 @@ from app.web import create_app
 @pytest.fixture(scope="module")
 def api(tmp_path_factory):
     # The in-process ASGI client calls itself "testserver"; allow that name here only.
-    app = create_app(Settings(data_dir=tmp_path_factory.mktemp("schemathesis"), extra_allowed_hosts=frozenset({"testserver"})))
+    app = create_app(
+        Settings(data_dir=tmp_path_factory.mktemp("schemathesis"), extra_allowed_hosts=frozenset({"testserver"}))
+    )
     return schemathesis.openapi.from_asgi("/openapi.json", app)
 
 
@@ -28,8 +30,9 @@ def test_no_server_errors_and_responses_match_schema(api):
         def run(case):
             response = case.call(headers={"Host": "127.0.0.1"})
             calls.append(response.status_code)
-            case.validate_response(response, checks=[not_a_server_error, response_schema_conformance,
-                                                     status_code_conformance])
+            case.validate_response(
+                response, checks=[not_a_server_error, response_schema_conformance, status_code_conformance]
+            )
 
         try:
             run()

@@ -37,13 +37,13 @@ def test_negative_height_named(tent_doc):
 @pytest.mark.parametrize("value, reason", [(5, "greater than or equal to 10"), (101, "less than or equal to 100")])
 def test_dimming_out_of_range(tent_doc, value, reason):
     tent_doc["room"]["fixtures"][0]["dimming_pct"] = value
-    (field, msg), = problems(tent_doc)
+    ((field, msg),) = problems(tent_doc)
     assert field == "room.fixtures[0].dimming_pct" and reason in msg
 
 
 def test_unknown_fixture_type(tent_doc):
     tent_doc["room"]["fixtures"][0]["type_id"] = "nowhere"
-    (field, msg), = problems(tent_doc)
+    ((field, msg),) = problems(tent_doc)
     assert field == "room.fixtures[0].type_id" and "unknown fixture type 'nowhere'" in msg
 
 
@@ -60,12 +60,13 @@ def test_duplicate_ids(tent_doc):
 
 def test_nan_refused_by_name(tent_doc):
     text = json.dumps(tent_doc).replace('"x_m": 0.3148', '"x_m": NaN')
-    (field, msg), = problems(text)
+    ((field, msg),) = problems(text)
     assert "NaN is not allowed" in msg
 
 
 def test_nan_value_refused_after_decoding(tent_doc):
     from app.models import RoomFile
+
     tent_doc["room"]["fixtures"][0]["x_m"] = float("nan")
     with pytest.raises(Exception, match="finite"):
         RoomFile.model_validate(tent_doc)
@@ -88,7 +89,7 @@ def test_not_a_room_file(raw):
 
 def test_wrong_types_named(tent_doc):
     tent_doc["room"]["zones"][0]["canopy_height_m"] = "high"
-    (field, msg), = problems(tent_doc)
+    ((field, msg),) = problems(tent_doc)
     assert field == "room.zones[0].canopy_height_m" and "number" in msg
 
 

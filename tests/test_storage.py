@@ -123,9 +123,15 @@ numbers = st.floats(min_value=0.05, max_value=0.95)
 
 
 @settings(max_examples=40, deadline=None, suppress_health_check=[HealthCheck.function_scoped_fixture])
-@given(fx=numbers, fy=numbers, dim=st.floats(10, 100), rot=st.sampled_from([0.0, 90.0, 180.0, 270.0]),
-       photo=st.one_of(st.none(), st.floats(1, 24)), name=st.text(min_size=1, max_size=60).filter(str.strip),
-       units=st.sampled_from(["imperial", "metric"]))
+@given(
+    fx=numbers,
+    fy=numbers,
+    dim=st.floats(10, 100),
+    rot=st.sampled_from([0.0, 90.0, 180.0, 270.0]),
+    photo=st.one_of(st.none(), st.floats(1, 24)),
+    name=st.text(min_size=1, max_size=60).filter(str.strip),
+    units=st.sampled_from(["imperial", "metric"]),
+)
 def test_round_trip_save_load_export_import(tmp_path_factory, fx, fy, dim, rot, photo, name, units):
     store = RoomStore(tmp_path_factory.mktemp("rt"))
     doc = sample_doc("hobby-tent-peppers")

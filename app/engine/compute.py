@@ -55,10 +55,46 @@ def check_scene(emitters, grids, boxes) -> None:
                 raise SceneError(f"emitter {e.id} is inside an obstacle")
 
 
+def covering_height_m(grid: Grid, boxes: tuple[Box, ...]) -> float:
+    """Bottom of the lowest box that covers the whole grid from above (a shelf over a tier), or inf."""
+    tol = 1e-3
+    over = [
+        b.z0_m
+        for b in boxes
+        if b.z0_m >= grid.z_m - 1e-9
+        and b.x0_m <= grid.x0_m + tol
+        and b.y0_m <= grid.y0_m + tol
+        and b.x1_m >= grid.x0_m + grid.width_m - tol
+        and b.y1_m >= grid.y0_m + grid.length_m - tol
+    ]
+    return min(over, default=np.inf)
+
+
+def lights_grid(emitter: Emitter, grid: Grid, boxes: tuple[Box, ...]) -> bool:
+    """Whether the emitter can light the grid at all.
+
+    A tier covered by a shelf is lit by the fixtures hung below that shelf. Light
+    from fixtures above the shelf could reach it only sideways through the tier's
+    open sides; that light is neglected (its size is measured in
+    tests/engine/test_reflections.py and stated in the README).
+    """
+    return grid.z_m < emitter.z_m < covering_height_m(grid, boxes) + 1e-9
+
+
+def reference_drop_m(emitter: Emitter, grids: tuple[Grid, ...], boxes: tuple[Box, ...]) -> float | None:
+    """The emitter's smallest drop to a grid it lights: the cull tolerance is set there."""
+    drops = [emitter.z_m - g.z_m for g in grids if lights_grid(emitter, g, boxes)]
+    return min(drops, default=None)
+
+
 @lru_cache(maxsize=8192)
-def fixture_on_grid(emitter: Emitter, grid: Grid, enc: Enclosure, boxes: tuple[Box, ...]):
+def fixture_on_grid(
+    emitter: Emitter, grid: Grid, enc: Enclosure, boxes: tuple[Box, ...], ref_drop_m: float | None = None
+):
     """(direct Patch or None, specular image map or None) of one emitter on one grid."""
-    direct = direct_patch(emitter, grid, boxes)
+    if not lights_grid(emitter, grid, boxes):
+        return None, None
+    direct = direct_patch(emitter, grid, boxes, reference_drop_m=ref_drop_m)
     spec = specular_map(emitter, grid, enc, boxes) if enc.finish == "specular" else None
     return direct, spec
 
@@ -81,11 +117,12 @@ def compute_scene(
         blockers = boxes + canopy_slabs(grids)
         e_patch = sum(_fixture_on_patches(e, enc, blockers) for e in emitters)
         exitance = radiosity_operator(enc, blockers) @ e_patch
+    ref = {e: reference_drop_m(e, grids, boxes) for e in emitters}
     for g in grids:
         direct = np.zeros((g.ny, g.nx), dtype=np.float32)
         reflected = np.zeros_like(direct)
         for e in emitters:
-            patch, spec = fixture_on_grid(e, g, enc, boxes)
+            patch, spec = fixture_on_grid(e, g, enc, boxes, ref[e])
             if isinstance(patch, Patch):
                 patch.add_into(direct)
             if spec is not None:

@@ -36,13 +36,18 @@ def blocked(q: np.ndarray, p: np.ndarray, boxes: tuple[Box, ...]) -> np.ndarray:
     out = np.zeros((q.shape[0], p.shape[0]), dtype=bool)
     if not boxes:
         return out
-    d = p[None, :, :] - q[:, None, :]
-    with np.errstate(divide="ignore", invalid="ignore"):
-        inv = 1.0 / d
+    qlo, qhi = q.min(axis=0), q.max(axis=0)
     for b in boxes:
         lo = np.array([b.x0_m, b.y0_m, b.z0_m])
         hi = np.array([b.x1_m, b.y1_m, b.z1_m])
-        with np.errstate(invalid="ignore"):
+        # Only points whose segments' bounding box meets the box can be blocked by it.
+        near = np.all((np.minimum(p, qlo) < hi) & (np.maximum(p, qhi) > lo), axis=1)
+        idx = np.nonzero(near)[0]
+        if idx.size == 0:
+            continue
+        d = p[None, idx, :] - q[:, None, :]
+        with np.errstate(divide="ignore", invalid="ignore"):
+            inv = 1.0 / d
             t1 = (lo - q[:, None, :]) * inv
             t2 = (hi - q[:, None, :]) * inv
         # Parallel to a slab: inside it, the slab never limits t; outside, it is never entered.
@@ -52,7 +57,7 @@ def blocked(q: np.ndarray, p: np.ndarray, boxes: tuple[Box, ...]) -> np.ndarray:
         t2 = np.where(par, np.inf, t2)
         tmin = np.max(np.minimum(t1, t2), axis=2)
         tmax = np.min(np.maximum(t1, t2), axis=2)
-        out |= (tmax > tmin + 1e-9) & (tmax > 1e-9) & (tmin < 1 - 1e-9)
+        out[:, idx] |= (tmax > tmin + 1e-9) & (tmax > 1e-9) & (tmin < 1 - 1e-9)
     return out
 
 
@@ -88,6 +93,19 @@ def irradiance_from_nodes(
         dy = p[None, :, 1] - nodes[:, None, 1]
         dz = nodes[:, None, 2] - p[None, :, 2]  # > 0 when the node is above the point
         r2 = dx * dx + dy * dy + dz * dz
+        if upward and dist.kind == "cosine_power":
+            # E = (n+1)/(2π) · Δz^(n+1) / d^(n+3): one power, no square root (Lambertian: (Δz/d²)²/π).
+            dzp = np.maximum(dz, 0.0)
+            n = dist.exponent
+            if n == 1.0:
+                q = dzp / r2
+                e = q * q
+            else:
+                e = dzp ** (n + 1.0) * r2 ** (-(n + 3.0) / 2.0)
+            if boxes:
+                e = np.where(blocked(nodes, p, boxes), 0.0, e)
+            out[a : a + step] = (flux * ((n + 1.0) / (2.0 * np.pi))) @ e
+            continue
         r = np.sqrt(r2)
         cos_t = dz / r
         if dist.kind == "tabulated":
@@ -182,18 +200,26 @@ def _stamp(local: Emitter, spacing_m: float, ia: int, ib: int, ja: int, jb: int,
     return e
 
 
-def direct_patch(emitter: Emitter, grid: Grid, boxes: tuple[Box, ...] = (), dtype=np.float32) -> Patch | None:
+def direct_patch(
+    emitter: Emitter, grid: Grid, boxes: tuple[Box, ...] = (), dtype=np.float32, reference_drop_m: float | None = None
+) -> Patch | None:
     """Direct irradiance of one emitter on the part of ``grid`` it reaches, or None if it reaches none.
 
-    Points below the cull tolerance are skipped. In open air (no box in the
-    way) the footprint is a stamp that depends only on the emitter's shape,
+    Points below the cull tolerance are skipped: CULL_RELATIVE of the peak the
+    emitter gives at ``reference_drop_m`` (its nearest canopy; this grid's own
+    drop when not given), so a far-below tier is not computed to a finer
+    absolute tolerance than the emitter's own canopy. In open air (no box in
+    the way) the footprint is a stamp that depends only on the emitter's shape,
     drop and position within a grid cell, so identical fixtures share one
     computation and a move only shifts it.
     """
     dz = emitter.z_m - grid.z_m
     if dz <= 0:
         return None
-    reach = cull_radius_m(emitter.distribution, dz) + 0.5 * emitter.largest_dimension_m
+    relative = CULL_RELATIVE * (dz / min(reference_drop_m or dz, dz)) ** 2
+    if relative >= 1.0:
+        return None
+    reach = cull_radius_m(emitter.distribution, dz, relative) + 0.5 * emitter.largest_dimension_m
     xs, ys = grid.x_m, grid.y_m
     i0, i1 = _window(xs, emitter.x_m - reach, emitter.x_m + reach)
     j0, j1 = _window(ys, emitter.y_m - reach, emitter.y_m + reach)

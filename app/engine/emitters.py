@@ -18,6 +18,7 @@ from app.engine.scene import Emitter
 SEGMENT_PER_DISTANCE = 0.5
 SHADOW_SUBDIVISION = 6  # finer nodes where a box can shade: penumbrae need them (tests/engine/test_reflections.py)
 _GL_NODES = 2
+_GL = np.polynomial.legendre.leggauss(_GL_NODES)
 MAX_SEGMENTS = 48
 POINT_BEYOND_SIZES = 5.0
 
@@ -26,7 +27,7 @@ def _composite_gauss_legendre(length: float, segments: int) -> tuple[np.ndarray,
     """Nodes on [-L/2, L/2] and weights summing to 1 (segments = 0: one midpoint node)."""
     if length <= 0 or segments < 1:
         return np.zeros(1), np.ones(1)
-    x, w = np.polynomial.legendre.leggauss(_GL_NODES)
+    x, w = _GL
     edges = np.linspace(-length / 2, length / 2, segments + 1)
     half = 0.5 * (edges[1:] - edges[:-1])
     mid = 0.5 * (edges[1:] + edges[:-1])
@@ -47,7 +48,9 @@ def _segments(extent: float, nearest_m: float) -> int:
     return int(np.clip(np.ceil(extent / (SEGMENT_PER_DISTANCE * max(nearest_m, 1e-6))), 1, MAX_SEGMENTS))
 
 
-def local_nodes(emitter: Emitter, nearest_m: float, shadowed: bool = False) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+def local_nodes(
+    emitter: Emitter, nearest_m: float, shadowed: bool = False
+) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
     """Node offsets (u along length, v along width) in the emitter frame and flux weights (sum 1).
 
     ``nearest_m`` is the shortest distance from the emitter to any receiver point it lights;

@@ -30,6 +30,7 @@ from app.engine.scene import Box, Emitter, Enclosure, Grid
 IMAGE_RELATIVE = 1e-6
 MAX_IMAGE_ORDER = 60
 NEAR_ORDER = 1  # images this close are computed on the fine grid with full emitter quadrature
+IMAGE_SAMPLES_PER_DISTANCE = 8
 COARSE_POINTS = 9  # far images vary slowly across a room: a coarse grid, bilinearly interpolated
 PATCH_TARGET_M = 0.25
 MAX_PATCHES_PER_SIDE = 12
@@ -97,10 +98,24 @@ def _boxes_between(boxes: tuple[Box, ...], z_lo: float, z_hi: float) -> tuple[Bo
     return tuple(b for b in boxes if b.z1_m > z_lo + 1e-9 and b.z0_m < z_hi - 1e-9)
 
 
+def _strided(axis: np.ndarray, step: int) -> np.ndarray:
+    """Every step-th value, always keeping the last."""
+    sub = axis[::step]
+    return sub if sub[-1] == axis[-1] else np.append(sub, axis[-1])
+
+
 def _bilinear(xc, yc, vals, xf, yf):
-    """Separable linear interpolation of vals (len(yc), len(xc)) onto the grid xf × yf."""
-    rows = np.array([np.interp(xf, xc, r) for r in vals])
-    return np.array([np.interp(yf, yc, rows[:, k]) for k in range(xf.size)]).T
+    """Bilinear interpolation of vals (len(yc), len(xc)) onto the grid xf × yf."""
+
+    def weights(c, f):
+        t = np.interp(f, c, np.arange(c.size, dtype=float))
+        i0 = np.minimum(np.floor(t).astype(int), max(c.size - 2, 0))
+        return i0, np.minimum(i0 + 1, c.size - 1), t - i0
+
+    i0, i1, fx = weights(np.asarray(xc), np.asarray(xf))
+    j0, j1, fy = weights(np.asarray(yc), np.asarray(yf))
+    rows = vals[:, i0] * (1 - fx) + vals[:, i1] * fx
+    return rows[j0] * (1 - fy)[:, None] + rows[j1] * fy[:, None]
 
 
 def specular_map(emitter: Emitter, grid: Grid, enc: Enclosure, boxes: tuple[Box, ...] = (), dtype=np.float32):
@@ -131,9 +146,16 @@ def specular_map(emitter: Emitter, grid: Grid, enc: Enclosure, boxes: tuple[Box,
                 x_m=float(mirror_coordinate(emitter.x_m, i, enc.width_m)),
                 y_m=float(mirror_coordinate(emitter.y_m, j, enc.length_m)),
             )
-            nodes, flux = world_nodes(emitter, nearest_distance_m(img, grid), shadowed=bool(bxs))
+            nearest = nearest_distance_m(img, grid)
+            nodes, flux = world_nodes(emitter, nearest, shadowed=bool(bxs))
+            # An image is at least `nearest` away from every point, so its field is smooth on that
+            # scale: sample it every nearest/8 and interpolate (shadows need every point).
+            step = 1 if bxs else max(1, int(nearest / (IMAGE_SAMPLES_PER_DISTANCE * grid.spacing_m)))
+            sx, sy = _strided(xs, step), _strided(ys, step)
+            sgx, sgy = np.meshgrid(sx, sy)
+            pts = fine if step == 1 else np.column_stack([sgx.ravel(), sgy.ravel(), np.full(sgx.size, grid.z_m)])
             e = irradiance_from_nodes(
-                fine,
+                pts,
                 _mirror_nodes(nodes, i, j, enc),
                 w * flux,
                 emitter.distribution,
@@ -141,8 +163,8 @@ def specular_map(emitter: Emitter, grid: Grid, enc: Enclosure, boxes: tuple[Box,
                 boxes=bxs,
                 mirror=mirror,
                 dtype=dtype,
-            )
-            out += e.reshape(out.shape)
+            ).reshape(sgy.shape)
+            out += e if step == 1 else _bilinear(sx, sy, e, xs, ys).astype(dtype)
         elif near_boxes:
             far_sum += irradiance_from_nodes(
                 coarse,
@@ -301,8 +323,18 @@ def patch_to_grid(enc: Enclosure, grid: Grid) -> np.ndarray:
 
 
 def _to_points(p: Patches, pts: np.ndarray) -> np.ndarray:
-    up = np.tile([0.0, 0.0, 1.0], (pts.shape[0], 1))
-    R = _exchange(p.sub_points, p.sub_normals, p.sub_areas, pts, up)
+    """(M, P) irradiance at upward points per unit patch exitance, from 2 × 2 sub-points per patch (float32)."""
+    c = p.sub_points.astype(np.float32)
+    n = p.sub_normals.astype(np.float32)
+    a = p.sub_areas.astype(np.float32)
+    q = pts.astype(np.float32)
+    dx = c[None, :, 0] - q[:, None, 0]
+    dy = c[None, :, 1] - q[:, None, 1]
+    dz = c[None, :, 2] - q[:, None, 2]
+    r2 = dx * dx + dy * dy + dz * dz
+    # cos at the receiver is Δz/r, at the patch −(d·n)/r; their product over r² is (…)/r².
+    cc = np.maximum(dz, 0) * np.maximum(-(dx * n[:, 0] + dy * n[:, 1] + dz * n[:, 2]), 0) / r2
+    R = cc * a / (np.float32(np.pi) * r2 + a)
     return R.reshape(pts.shape[0], -1, 4).sum(axis=2)
 
 

@@ -25,7 +25,10 @@ def fresh_room(base: str, sample: str = "hobby-tent-peppers", name: str | None =
 def wait_saved(page, revision_above: int, timeout_ms: int = 15000) -> int:
     page.wait_for_function(
         "r => { const m = document.getElementById('save-status').textContent.match(/Saved · revision (\\d+)/);"
-        " return m && Number(m[1]) > r; }", arg=revision_above, timeout=timeout_ms)
+        " return m && Number(m[1]) > r; }",
+        arg=revision_above,
+        timeout=timeout_ms,
+    )
     return int(page.locator("#save-status").inner_text().rsplit(" ", 1)[1])
 
 

@@ -22,7 +22,9 @@ def sample_emitter(rng, n, x, y, z, shape, length, width, bars=1, bar_width=0.0,
     else:
         v = rng.uniform(-width / 2, width / 2, n) if width > 0 else np.zeros(n)
     a = math.radians(rotation_deg)
-    return np.column_stack([x + u * math.cos(a) - v * math.sin(a), y + u * math.sin(a) + v * math.cos(a), np.full(n, z)])
+    return np.column_stack(
+        [x + u * math.cos(a) - v * math.sin(a), y + u * math.sin(a) + v * math.cos(a), np.full(n, z)]
+    )
 
 
 def sample_cos_power(rng, n, exponent):
@@ -73,8 +75,9 @@ def trace(origins, dirs, flux_each, room_w, room_l, rho_walls, canopy, boxes=(),
         o, d, w, tw = o[bounce], d[bounce], w[bounce], t_wall[bounce]
         o = o + tw[:, None] * d
         side_x = np.isclose(o[:, 0], 0) | np.isclose(o[:, 0], room_w)
-        side = np.where(side_x, np.where(o[:, 0] < room_w / 2, "left", "right"),
-                        np.where(o[:, 1] < room_l / 2, "front", "back"))
+        side = np.where(
+            side_x, np.where(o[:, 0] < room_w / 2, "left", "right"), np.where(o[:, 1] < room_l / 2, "front", "back")
+        )
         rho = np.array([rho_walls[s] for s in side]) if len(side) else np.zeros(0)
         w = w * rho
         d[side_x, 0] *= -1

@@ -36,14 +36,18 @@ def howell_b3(a, b, c):
     Howell J.R., A Catalog of Radiation Heat Transfer Configuration Factors, case B-3.
     """
     A, B = a / c, b / c
-    return (A / np.sqrt(1 + A * A) * np.arctan(B / np.sqrt(1 + A * A))
-            + B / np.sqrt(1 + B * B) * np.arctan(A / np.sqrt(1 + B * B))) / (2 * np.pi)
+    return (
+        A / np.sqrt(1 + A * A) * np.arctan(B / np.sqrt(1 + A * A))
+        + B / np.sqrt(1 + B * B) * np.arctan(A / np.sqrt(1 + B * B))
+    ) / (2 * np.pi)
 
 
 def rect_factor(x0, x1, y0, y1, c):
     """Any rectangle by adding and subtracting corner rectangles."""
+
     def corner(x, y):
         return np.sign(x) * np.sign(y) * howell_b3(np.abs(x), np.abs(y), c)
+
     return corner(x1, y1) - corner(x0, y1) - corner(x1, y0) + corner(x0, y0)
 
 

@@ -12,8 +12,9 @@ from app.engine import distributions as d
 def test_cosine_power_integrates_to_one_scipy(n):
     # Φ = ∫₀^{2π} ∫₀^{π/2} I(θ) sin θ dθ dφ, by SciPy's adaptive quadrature (general-purpose reference).
     dist = d.cosine_power(n)
-    val, _ = integrate.dblquad(lambda t, p: float(d.intensity_per_flux(dist, np.cos(t))) * np.sin(t),
-                               0, 2 * np.pi, 0, np.pi / 2)
+    val, _ = integrate.dblquad(
+        lambda t, p: float(d.intensity_per_flux(dist, np.cos(t))) * np.sin(t), 0, 2 * np.pi, 0, np.pi / 2
+    )
     assert_allclose(val, 1.0, rtol=1e-8)
 
 
@@ -45,8 +46,15 @@ def test_tabulated_normalised_and_matches_cosine_law():
     table = np.tile(np.cos(np.radians(polar)), (az.size, 1))
     dist = d.tabulated(polar, az, table)
     # Normalised: the interpolant integrates to 1 (SciPy reference).
-    val, _ = integrate.dblquad(lambda t, p: float(d.intensity_per_flux(dist, np.cos(t), p)) * np.sin(t),
-                               0, 2 * np.pi, 0, np.pi / 2, epsabs=1e-4, epsrel=1e-4)
+    val, _ = integrate.dblquad(
+        lambda t, p: float(d.intensity_per_flux(dist, np.cos(t), p)) * np.sin(t),
+        0,
+        2 * np.pi,
+        0,
+        np.pi / 2,
+        epsabs=1e-4,
+        epsrel=1e-4,
+    )
     assert_allclose(val, 1.0, rtol=2e-3)
     assert_allclose(d.intensity_per_flux(dist, np.cos(np.radians(30)), 1.0), np.cos(np.radians(30)) / np.pi, rtol=3e-3)
 

@@ -7,13 +7,16 @@ from numpy.testing import assert_allclose
 from app.engine import metrics as mx
 
 
-@pytest.mark.parametrize("ppfd, hours, dli", [
-    # DLI = PPFD × h × 3600 / 10⁶ (Faust J.E. & Logan J. (2018), HortScience 53(9):1250-1257).
-    (200, 16, 11.52),
-    (250, 18, 16.2),   # the Cornell CEA lettuce target of about 17 needs a little more than 250 at 18 h
-    (1000, 12, 43.2),
-    (295.1, 16, 17.0),  # 17 mol m⁻² d⁻¹ (Brechner & Both, Cornell CEA lettuce handbook) over 16 h
-])
+@pytest.mark.parametrize(
+    "ppfd, hours, dli",
+    [
+        # DLI = PPFD × h × 3600 / 10⁶ (Faust J.E. & Logan J. (2018), HortScience 53(9):1250-1257).
+        (200, 16, 11.52),
+        (250, 18, 16.2),  # the Cornell CEA lettuce target of about 17 needs a little more than 250 at 18 h
+        (1000, 12, 43.2),
+        (295.1, 16, 17.0),  # 17 mol m⁻² d⁻¹ (Brechner & Both, Cornell CEA lettuce handbook) over 16 h
+    ],
+)
 def test_dli_worked_examples(ppfd, hours, dli):
     assert_allclose(mx.dli_mol_m2_d(ppfd, hours), dli, rtol=1e-3)
     assert_allclose(mx.ppfd_for_dli(dli, hours), ppfd, rtol=1e-3)
@@ -40,7 +43,9 @@ def test_outline_of_a_single_cell_is_a_square():
     m = np.zeros((3, 3), bool)
     m[1, 1] = True
     segs = mx.mask_outline(m, [0, 1, 2], [0, 1, 2])
-    assert sorted(segs) == sorted([[0.5, 0.5, 1.5, 0.5], [0.5, 1.5, 1.5, 1.5], [0.5, 0.5, 0.5, 1.5], [1.5, 0.5, 1.5, 1.5]])
+    assert sorted(segs) == sorted(
+        [[0.5, 0.5, 1.5, 0.5], [0.5, 1.5, 1.5, 1.5], [0.5, 0.5, 0.5, 1.5], [1.5, 0.5, 1.5, 1.5]]
+    )
     area, share = mx.share_of_area(m, np.ones((3, 3)))
     assert (area, share) == (1.0, 1 / 9)
 

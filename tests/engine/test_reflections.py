@@ -71,11 +71,19 @@ def test_reflective_tent_matches_monte_carlo_reference():
     tally = np.zeros((ny, nx))
     n = 1_000_000
     for f in fixtures:
-        o = sample_emitter(rng, n, f.x_m, f.y_m, f.z_m, f.shape, f.length_m, f.width_m, f.bar_count,
-                           f.bar_width_m, f.rotation_deg)
+        o = sample_emitter(
+            rng, n, f.x_m, f.y_m, f.z_m, f.shape, f.length_m, f.width_m, f.bar_count, f.bar_width_m, f.rotation_deg
+        )
         d = sample_cos_power(rng, n, f.distribution.exponent)
-        tally += trace(o, d, f.flux_umol_s / n, W, W, dict.fromkeys(("left", "right", "front", "back"), rho),
-                       (0, 0, W, W, 0.6, nx, ny))
+        tally += trace(
+            o,
+            d,
+            f.flux_umol_s / n,
+            W,
+            W,
+            dict.fromkeys(("left", "right", "front", "back"), rho),
+            (0, 0, W, W, 0.6, nx, ny),
+        )
     ours = binned(zl.ppfd, g, nx, ny)
     rms = np.sqrt(np.mean((ours - tally) ** 2)) / tally.mean()
     assert rms < 0.02, f"RMS difference {rms:.3%}"
@@ -96,22 +104,33 @@ def test_rack_with_shadowing_shelf_matches_monte_carlo_reference():
     n = 2_000_000
     o = sample_emitter(rng, n, f.x_m, f.y_m, f.z_m, "bar", f.length_m, f.width_m, rotation_deg=90)
     d = sample_cos_power(rng, n, f.distribution.exponent)
-    tally = trace(o, d, f.flux_umol_s / n, 0.6, 1.2, dict.fromkeys(("left", "right", "front", "back"), 0.0),
-                  (0, 0, 0.6, 1.2, 0.3, nx, ny), boxes=(shelf,))
+    tally = trace(
+        o,
+        d,
+        f.flux_umol_s / n,
+        0.6,
+        1.2,
+        dict.fromkeys(("left", "right", "front", "back"), 0.0),
+        (0, 0, 0.6, 1.2, 0.3, nx, ny),
+        boxes=(shelf,),
+    )
     ours = binned(zl.ppfd, g, nx, ny)
     assert tally[0, 0] < 0.2 * tally[-1, -1]  # the shelf really shades the front-left corner
     rms = np.sqrt(np.mean((ours - tally) ** 2)) / tally.mean()
     assert rms < 0.02, f"RMS difference {rms:.3%}"
 
 
-@pytest.mark.parametrize("finish, rho, tol", [("specular", 0.95, 0.01), ("absorbing", 0.0, 0.01), ("diffuse", 0.8, 0.05)])
+@pytest.mark.parametrize(
+    "finish, rho, tol", [("specular", 0.95, 0.01), ("absorbing", 0.0, 0.01), ("diffuse", 0.8, 0.05)]
+)
 def test_map_integral_agrees_with_the_ray_tally(finish, rho, tol):
     # Two independent computations of the photons landing on the canopy: the integrated PPFD map,
     # and the ray tally of app.engine.budget. Matt walls use coarse radiosity patches: 5 % (stated in README).
     clear_caches()
     enc = Enclosure(3.0, 3.6, 2.4, finish, rho)
-    fixtures = tuple(Emitter(f"p{k}", x, 1.8, 1.6, 560.0, lambertian(), "panel", 0.6, 0.6)
-                     for k, x in enumerate((0.9, 2.1)))
+    fixtures = tuple(
+        Emitter(f"p{k}", x, 1.8, 1.6, 560.0, lambertian(), "panel", 0.6, 0.6) for k, x in enumerate((0.9, 2.1))
+    )
     g = Grid("bench", 0.4, 0.4, 2.2, 2.8, 0.9, 0.0254)
     zl = compute_scene(fixtures, (g,), enc)[0]
     b = photon_budget(fixtures, (g,), enc)

@@ -1,0 +1,199 @@
+"""Benchmark: ``python -m app.bench`` times the engine on fixed scenes.
+
+For each scene it prints the median compute time (cold, full recompute, and
+moving one fixture), the peak memory traced during a full compute, and the
+speed-up over a brute-force reference (fine direct summation: about 32 × 32 nodes per
+fixture, every mirror image on the fine grid, no culling, no stamps) together
+with the RMS difference between the two, so the speed-up is at equal accuracy.
+"""
+
+from __future__ import annotations
+
+import argparse
+import json
+import statistics
+import time
+import tracemalloc
+from dataclasses import replace
+from pathlib import Path
+
+import numpy as np
+
+from app.engine import compute, direct, reflections
+from app.engine.compute import compute_scene
+from app.engine.direct import irradiance_from_nodes
+from app.engine.emitters import local_nodes
+from app.engine.reflections import image_list, mirror_coordinate
+from app.farm import vertical_farm
+from app.roomfile import parse_room_file
+from app.scene_builder import EngineScene, build_scene
+from app.settings import PROJECT_ROOT
+
+
+def clear_fixture_caches() -> None:
+    compute.fixture_on_grid.cache_clear()
+    compute._fixture_on_patches.cache_clear()
+    direct._stamp.cache_clear()
+
+
+def clear_all_caches() -> None:
+    clear_fixture_caches()
+    for fn in (reflections.wall_patches, reflections.radiosity_operator, reflections.patch_to_grid):
+        fn.cache_clear()
+
+
+def run(scene: EngineScene):
+    return compute_scene(scene.emitters, scene.grids, scene.enclosure, scene.boxes)
+
+
+def median_ms(fn, repeats: int) -> float:
+    times = []
+    for _ in range(repeats):
+        t = time.perf_counter()
+        fn()
+        times.append((time.perf_counter() - t) * 1000)
+    return statistics.median(times)
+
+
+def _dense_nodes(e, n=32):
+    """Brute force: about 32 × 32 Gauss-Legendre nodes over the emitter, whatever its distance."""
+    if e.shape == "point":
+        return np.array([[e.x_m, e.y_m, e.z_m]]), np.array([e.flux_umol_s])
+    fine = replace(e, length_m=e.length_m, width_m=e.width_m)
+    u, v, w = local_nodes(fine, e.largest_dimension_m / n / 0.5 / 2)  # segments ≈ n per dimension
+    a = np.radians(e.rotation_deg)
+    xyz = np.column_stack(
+        [e.x_m + np.cos(a) * u - np.sin(a) * v, e.y_m + np.sin(a) * u + np.cos(a) * v, np.full(u.size, e.z_m)]
+    )
+    return xyz, w * e.flux_umol_s
+
+
+def brute_force(scene: EngineScene) -> list[np.ndarray]:
+    """Reference maps by fine direct summation (direct light and mirror images; diffuse walls as the engine)."""
+    out = []
+    for g in scene.grids:
+        gx, gy = np.meshgrid(g.x_m, g.y_m)
+        pts = np.column_stack([gx.ravel(), gy.ravel(), np.full(gx.size, g.z_m)])
+        total = np.zeros(pts.shape[0])
+        for e in scene.emitters:
+            if not compute.lights_grid(e, g, scene.boxes):
+                continue
+            nodes, flux = _dense_nodes(e)
+            near = direct.relevant_boxes(e, g, scene.boxes, 1e9)
+            total += irradiance_from_nodes(pts, nodes, flux, e.distribution, e.rotation_deg, boxes=near)
+            if scene.enclosure.finish == "specular":
+                for i, j, w in image_list(e, g, scene.enclosure):
+                    img = nodes.copy()
+                    img[:, 0] = mirror_coordinate(nodes[:, 0], i, scene.enclosure.width_m)
+                    img[:, 1] = mirror_coordinate(nodes[:, 1], j, scene.enclosure.length_m)
+                    total += irradiance_from_nodes(pts, img, w * flux, e.distribution, e.rotation_deg)
+        out.append(total.reshape(g.ny, g.nx))
+    if scene.enclosure.finish == "diffuse":
+        engine = run(scene)
+        out = [o + z.reflected for o, z in zip(out, engine, strict=True)]
+    return out
+
+
+def bench_scene(name: str, scene: EngineScene, repeats: int, brute: bool, rng: np.random.Generator) -> dict:
+    clear_all_caches()
+    t = time.perf_counter()
+    run(scene)
+    cold_ms = (time.perf_counter() - t) * 1000
+
+    def full():
+        clear_fixture_caches()
+        run(scene)
+
+    full_ms = median_ms(full, repeats)
+    tracemalloc.start()
+    full()
+    _, peak = tracemalloc.get_traced_memory()
+    tracemalloc.stop()
+    run(scene)  # warm every fixture's cached contribution
+    emitters = list(scene.emitters)
+    k = 0
+
+    def drag():
+        nonlocal k
+        k += 1
+        e = scene.emitters[0]
+        dx, dy = rng.uniform(-0.02, 0.02, 2)
+        emitters[0] = replace(e, x_m=e.x_m + dx, y_m=e.y_m + dy)
+        compute_scene(tuple(emitters), scene.grids, scene.enclosure, scene.boxes)
+
+    drag_ms = median_ms(drag, repeats)
+    result = {
+        "scene": name,
+        "points": int(sum(g.nx * g.ny for g in scene.grids)),
+        "fixtures": len(scene.emitters),
+        "cold_ms": cold_ms,
+        "full_ms": full_ms,
+        "drag_ms": drag_ms,
+        "peak_mib": peak / 2**20,
+    }
+    if brute:
+        t = time.perf_counter()
+        ref = brute_force(scene)
+        brute_ms = (time.perf_counter() - t) * 1000
+        ours = run(scene)
+        diff = np.concatenate([(z.ppfd - r).ravel() for z, r in zip(ours, ref, strict=True)])
+        mean = np.mean(np.concatenate([r.ravel() for r in ref]))
+        result.update(
+            brute_ms=brute_ms, speedup=brute_ms / full_ms, rms_vs_brute=float(np.sqrt(np.mean(diff**2)) / mean)
+        )
+    return result
+
+
+def sample(name: str) -> EngineScene:
+    return build_scene(parse_room_file((PROJECT_ROOT / "sample_rooms" / f"{name}.json").read_bytes()).room)
+
+
+def main(argv: list[str] | None = None) -> int:
+    ap = argparse.ArgumentParser(prog="python -m app.bench", description=__doc__.splitlines()[0])
+    ap.add_argument("--repeats", type=int, default=9)
+    ap.add_argument("--no-farm", action="store_true", help="skip the 1,000-fixture vertical farm")
+    ap.add_argument("--json", type=Path, help="also write the figures to this file")
+    args = ap.parse_args(argv)
+    rng = np.random.default_rng(1)
+    results = [
+        bench_scene(
+            "tent 4x4 ft, 2 bar arrays, reflective film, 1 in grid",
+            sample("hobby-tent-peppers"),
+            args.repeats,
+            True,
+            rng,
+        ),
+        bench_scene(
+            "room 10x12 ft, 6 panels, 2 benches, matt walls, 1 in grid",
+            sample("basement-two-benches"),
+            args.repeats,
+            True,
+            rng,
+        ),
+        bench_scene(
+            "rack 2x4 ft, 3 tiers, 6 strips, 1 in grid", sample("three-tier-greens-rack"), args.repeats, True, rng
+        ),
+    ]
+    if not args.no_farm:
+        farm = build_scene(vertical_farm().room)
+        results.append(bench_scene("vertical farm 964 m2, 5 tiers, 1,000 fixtures, 5 cm grid", farm, 3, False, rng))
+        one_row = build_scene(vertical_farm(rows=1).room)
+        r = bench_scene("one farm row (100 fixtures), for the brute-force ratio", one_row, 3, True, rng)
+        results.append(r)
+    print(
+        f"{'scene':<62}{'points':>9}{'fix':>6}{'cold ms':>10}{'full ms':>10}{'drag ms':>9}{'peak MiB':>10}"
+        f"{'brute ms':>10}{'speed-up':>9}{'RMS diff':>9}"
+    )
+    for r in results:
+        print(
+            f"{r['scene']:<62}{r['points']:>9,}{r['fixtures']:>6}{r['cold_ms']:>10.1f}{r['full_ms']:>10.1f}"
+            f"{r['drag_ms']:>9.1f}{r['peak_mib']:>10.1f}"
+            + (f"{r['brute_ms']:>10.0f}{r['speedup']:>8.1f}x{r['rms_vs_brute']:>9.2%}" if "brute_ms" in r else "")
+        )
+    if args.json:
+        args.json.write_text(json.dumps(results, indent=1))
+    return 0
+
+
+if __name__ == "__main__":
+    raise SystemExit(main())
