@@ -136,7 +136,8 @@ def plan_svg(room: Room, analysis: dict[str, Any], width_px: float = 640, fixtur
 
 
 def heatmap_svg(
-    zone: dict[str, Any], units: str, quantity: str = "ppfd", width_px: float = 300, max_cells: int = 70
+    zone: dict[str, Any], units: str, quantity: str = "ppfd", width_px: float = 300, max_cells: int = 70,
+    max_height_px: float = 260,
 ) -> str:
     """A zone's PPFD (or DLI) heatmap with a colour scale and its dark/hot outlines."""
     g = zone["grid"]
@@ -151,9 +152,9 @@ def heatmap_svg(
     x0, y0, w, l = zone["rect"]
     scale = width_px / w
     h_px = l * scale
-    if h_px > 320:
-        scale = 320 / l
-        h_px, width_px = 320, w * scale
+    if h_px > max_height_px:
+        scale = max_height_px / l
+        h_px, width_px = max_height_px, w * scale
     vmin, vmax = float(values.min()), float(values.max())
     span = vmax - vmin if vmax > vmin else 1.0
     colours = viridis((v - vmin) / span)
@@ -188,10 +189,5 @@ def heatmap_svg(
             f'<text x="{width_px + 24:.1f}" y="{h_px * (1 - t) + 4 - (8 if t == 1 else 0) + (0 if t else -4):.1f}" '
             f'font-size="9">{vmin + t * span:.0f}</text>'
         )
-    unit = "µmol m⁻² s⁻¹" if quantity == "ppfd" else "mol m⁻² d⁻¹"
-    out.append(
-        f'<text x="0" y="{h_px + 12:.1f}" font-size="9">{escape(quantity.upper())} [{unit}]; white dotted: below band; '
-        f"red: above stress level</text>"
-    )
     out.append("</svg>")
     return "".join(out)
