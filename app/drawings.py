@@ -136,7 +136,11 @@ def plan_svg(room: Room, analysis: dict[str, Any], width_px: float = 640, fixtur
 
 
 def heatmap_svg(
-    zone: dict[str, Any], units: str, quantity: str = "ppfd", width_px: float = 300, max_cells: int = 70,
+    zone: dict[str, Any],
+    units: str,
+    quantity: str = "ppfd",
+    width_px: float = 300,
+    max_cells: int = 70,
     max_height_px: float = 260,
 ) -> str:
     """A zone's PPFD (or DLI) heatmap with a colour scale and its dark/hot outlines."""

@@ -70,7 +70,7 @@ def covering_height_m(grid: Grid, boxes: tuple[Box, ...]) -> float:
     return min(over, default=np.inf)
 
 
-def lights_grid(emitter: Emitter, grid: Grid, boxes: tuple[Box, ...]) -> bool:
+def lights_grid(emitter: Emitter, grid: Grid, cover_m: float) -> bool:
     """Whether the emitter can light the grid at all.
 
     A tier covered by a shelf is lit by the fixtures hung below that shelf. Light
@@ -78,21 +78,36 @@ def lights_grid(emitter: Emitter, grid: Grid, boxes: tuple[Box, ...]) -> bool:
     open sides; that light is neglected (its size is measured in
     tests/engine/test_reflections.py and stated in the README).
     """
-    return grid.z_m < emitter.z_m < covering_height_m(grid, boxes) + 1e-9
+    return grid.z_m < emitter.z_m < cover_m + 1e-9
 
 
-def reference_drop_m(emitter: Emitter, grids: tuple[Grid, ...], boxes: tuple[Box, ...]) -> float | None:
+def reference_drop_m(emitter: Emitter, grids: tuple[Grid, ...], covers: dict[Grid, float]) -> float | None:
     """The emitter's smallest drop to a grid it lights: the cull tolerance is set there."""
-    drops = [emitter.z_m - g.z_m for g in grids if lights_grid(emitter, g, boxes)]
+    drops = [emitter.z_m - g.z_m for g in grids if lights_grid(emitter, g, covers[g])]
     return min(drops, default=None)
+
+
+class BoxSet(tuple):
+    """A tuple of boxes that hashes once: it is part of every memoised fixture contribution's key."""
+
+    def __hash__(self) -> int:
+        h = self.__dict__.get("_hash")
+        if h is None:
+            h = self.__dict__["_hash"] = tuple.__hash__(self)
+        return h
 
 
 @lru_cache(maxsize=8192)
 def fixture_on_grid(
-    emitter: Emitter, grid: Grid, enc: Enclosure, boxes: tuple[Box, ...], ref_drop_m: float | None = None
+    emitter: Emitter,
+    grid: Grid,
+    enc: Enclosure,
+    boxes: tuple[Box, ...],
+    ref_drop_m: float | None = None,
+    cover_m: float = np.inf,
 ):
     """(direct Patch or None, specular image map or None) of one emitter on one grid."""
-    if not lights_grid(emitter, grid, boxes):
+    if not lights_grid(emitter, grid, cover_m):
         return None, None
     direct = direct_patch(emitter, grid, boxes, reference_drop_m=ref_drop_m)
     spec = specular_map(emitter, grid, enc, boxes) if enc.finish == "specular" else None
@@ -111,18 +126,22 @@ def compute_scene(
 ) -> list[ZoneLight]:
     """Direct and reflected PPFD on every grid."""
     check_scene(emitters, grids, boxes)
+    boxes = BoxSet(boxes)
     out = []
     exitance = None
     if enc.finish == "diffuse" and enc.reflectance > 0 and emitters:
         blockers = boxes + canopy_slabs(grids)
         e_patch = sum(_fixture_on_patches(e, enc, blockers) for e in emitters)
         exitance = radiosity_operator(enc, blockers) @ e_patch
-    ref = {e: reference_drop_m(e, grids, boxes) for e in emitters}
+    covers = {g: covering_height_m(g, boxes) for g in grids}
+    ref = {e: reference_drop_m(e, grids, covers) for e in emitters}
     for g in grids:
         direct = np.zeros((g.ny, g.nx), dtype=np.float32)
         reflected = np.zeros_like(direct)
         for e in emitters:
-            patch, spec = fixture_on_grid(e, g, enc, boxes, ref[e])
+            if not lights_grid(e, g, covers[g]):
+                continue
+            patch, spec = fixture_on_grid(e, g, enc, boxes, ref[e], covers[g])
             if isinstance(patch, Patch):
                 patch.add_into(direct)
             if spec is not None:

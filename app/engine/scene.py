@@ -32,6 +32,14 @@ class Emitter:
     bar_width_m: float = 0.0
     rotation_deg: float = 0.0
 
+    def __hash__(self) -> int:
+        # Emitters key every memoised contribution; hash the fields once, not on every lookup.
+        h = self.__dict__.get("_hash")
+        if h is None:
+            h = hash(tuple(getattr(self, f) for f in self.__dataclass_fields__))
+            object.__setattr__(self, "_hash", h)
+        return h
+
     @property
     def largest_dimension_m(self) -> float:
         return float(np.hypot(self.length_m, self.width_m))

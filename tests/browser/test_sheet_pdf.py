@@ -27,8 +27,9 @@ def test_sheet_prints_on_one_or_two_pages(live_server, page, artifacts, paper):
         page.goto(f"{live_server}/rooms/{r['id']}/sheet?paper={paper}")
         page.emulate_media(media="print")
         # Nothing wider than the printable area.
-        widest = page.evaluate("() => Math.max(...[...document.querySelectorAll('.sheet *')]"
-                               ".map(e => e.getBoundingClientRect().right))")
+        widest = page.evaluate(
+            "() => Math.max(...[...document.querySelectorAll('.sheet *')].map(e => e.getBoundingClientRect().right))"
+        )
         printable_px = (PAPER_MM[paper][0] - 2 * MARGIN_MM) * PX_PER_MM
         assert widest <= printable_px + 1, f"{r['id']}: content reaches {widest:.0f}px of {printable_px:.0f}px"
         pdf = page.pdf(prefer_css_page_size=True, print_background=True)
@@ -44,6 +45,14 @@ def test_sheet_prints_on_one_or_two_pages(live_server, page, artifacts, paper):
             assert f["id"] in text, f"fixture {f['id']} missing from the sheet"
         for z in doc["room"]["zones"]:
             assert z["name"] in text
-        for needle in ("Canopy figures per zone", "Cautions", "licensed electrician", "rated for their weight",
-                       "eye protection", "water away", "BTU/h", "File revision"):
+        for needle in (
+            "Canopy figures per zone",
+            "Cautions",
+            "licensed electrician",
+            "rated for their weight",
+            "eye protection",
+            "water away",
+            "BTU/h",
+            "File revision",
+        ):
             assert needle in text, needle
