@@ -145,6 +145,63 @@ def bench_scene(name: str, scene: EngineScene, repeats: int, brute: bool, rng: n
     return result
 
 
+def browser_latency(rooms: list[str], moves: int = 25) -> list[dict]:
+    """Median time from a pointer move to the repainted map, in Debian's Chromium against a real server.
+
+    Needs the test extra (playwright) and the chromium package; each move waits for its repaint.
+    """
+    import shutil
+    import socket
+    import tempfile
+    import threading
+
+    import uvicorn
+    from playwright.sync_api import sync_playwright
+
+    from app.settings import Settings
+    from app.web import create_app
+
+    with socket.socket() as sock:
+        sock.bind(("127.0.0.1", 0))
+        port = sock.getsockname()[1]
+    data = tempfile.mkdtemp(prefix="leafcast-bench-")
+    server = uvicorn.Server(uvicorn.Config(create_app(Settings(data_dir=Path(data))), host="127.0.0.1", port=port,
+                                           log_level="warning"))
+    thread = threading.Thread(target=server.run, daemon=True)
+    thread.start()
+    while not server.started:
+        time.sleep(0.05)
+    out = []
+    flags = ["--no-sandbox", "--disable-gpu", "--disable-background-networking", "--disable-component-update",
+             "--disable-sync", "--no-first-run", "--disable-quic"]
+    try:
+        with sync_playwright() as p:
+            browser = p.chromium.launch(executable_path=shutil.which("chromium"), args=flags)
+            page = browser.new_page(viewport={"width": 1280, "height": 800})
+            for room in rooms:
+                page.goto(f"http://127.0.0.1:{port}/rooms/{room}")
+                page.wait_for_function("() => window.leafcast && window.leafcast.ready")
+                fid = page.evaluate("() => window.leafcast.doc.room.fixtures[0].id")
+                box = page.locator(f'[data-fixture-id="{fid}"]').bounding_box()
+                x, y = box["x"] + box["width"] / 2, box["y"] + box["height"] / 2
+                page.mouse.move(x, y)
+                page.mouse.down()
+                samples = []
+                for k in range(moves):
+                    n = page.evaluate("() => window.leafcast.timing.length")
+                    page.mouse.move(x + 3 * (k % 10) + 3, y)
+                    page.wait_for_function("n => window.leafcast.timing.length > n", arg=n)
+                    samples.append(page.evaluate("() => window.leafcast.timing.at(-1).since_move_ms"))
+                page.mouse.up()
+                out.append({"room": room, "median_ms": statistics.median(samples), "max_ms": max(samples)})
+            browser.close()
+    finally:
+        server.should_exit = True
+        thread.join(5)
+        shutil.rmtree(data, ignore_errors=True)
+    return out
+
+
 def sample(name: str) -> EngineScene:
     return build_scene(parse_room_file((PROJECT_ROOT / "sample_rooms" / f"{name}.json").read_bytes()).room)
 
@@ -154,6 +211,7 @@ def main(argv: list[str] | None = None) -> int:
     ap.add_argument("--repeats", type=int, default=9)
     ap.add_argument("--no-farm", action="store_true", help="skip the 1,000-fixture vertical farm")
     ap.add_argument("--json", type=Path, help="also write the figures to this file")
+    ap.add_argument("--browser", action="store_true", help="also time pointer move to repainted map in Chromium")
     args = ap.parse_args(argv)
     rng = np.random.default_rng(1)
     results = [
@@ -191,6 +249,11 @@ def main(argv: list[str] | None = None) -> int:
             f"{r['drag_ms']:>9.1f}{r['peak_mib']:>10.1f}"
             + (f"{r['brute_ms']:>10.0f}{r['speedup']:>8.1f}x{r['rms_vs_brute']:>9.2%}" if "brute_ms" in r else "")
         )
+    if args.browser:
+        for r in browser_latency(["hobby-tent-4-x-4-ft-peppers", "basement-room-10-x-12-ft-two-benches"]):
+            print(f"browser, pointer move to repainted map: {r['room']}: median {r['median_ms']:.0f} ms, "
+                  f"max {r['max_ms']:.0f} ms")
+            results.append({"scene": "browser " + r["room"], **r})
     rss = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024
     print(f"peak resident memory of this whole run: {rss:.0f} MiB (traced numpy peak per scene in the table)")
     if args.json:

@@ -614,7 +614,10 @@
       type: "heatmap", x: xs, y: ys, z: values, colorscale: "Viridis", zsmooth: false,
       colorbar: { title: { text: title, side: "top" }, thickness: 14 }, showlegend: false,
       hovertemplate: `%{x:.2f} ${Units.axisUnit(u)}, %{y:.2f} ${Units.axisUnit(u)}<br>%{z:.0f}<extra></extra>`,
-    }, contour(low, "#ffffff", "dark"), contour(high, "#ff3b30", "hot")];
+    }];
+    // Contours are costly to trace: while a fixture is being dragged the heatmap alone follows the
+    // pointer, and the contour lines return as soon as it is dropped.
+    if (!dragging) traces.push(contour(low, "#ffffff", "dark"), contour(high, "#ff3b30", "hot"));
     const shapes = room().fixtures.filter((f) => f.on).map((f) => {
       const [hx, hy] = halfExtent(f);
       return { type: "rect", x0: Units.axisValue(f.x_m - hx, u), x1: Units.axisValue(f.x_m + hx, u), y0: Units.axisValue(f.y_m - hy, u),
