@@ -165,15 +165,23 @@ def browser_latency(rooms: list[str], moves: int = 25) -> list[dict]:
         sock.bind(("127.0.0.1", 0))
         port = sock.getsockname()[1]
     data = tempfile.mkdtemp(prefix="leafcast-bench-")
-    server = uvicorn.Server(uvicorn.Config(create_app(Settings(data_dir=Path(data))), host="127.0.0.1", port=port,
-                                           log_level="warning"))
+    server = uvicorn.Server(
+        uvicorn.Config(create_app(Settings(data_dir=Path(data))), host="127.0.0.1", port=port, log_level="warning")
+    )
     thread = threading.Thread(target=server.run, daemon=True)
     thread.start()
     while not server.started:
         time.sleep(0.05)
     out = []
-    flags = ["--no-sandbox", "--disable-gpu", "--disable-background-networking", "--disable-component-update",
-             "--disable-sync", "--no-first-run", "--disable-quic"]
+    flags = [
+        "--no-sandbox",
+        "--disable-gpu",
+        "--disable-background-networking",
+        "--disable-component-update",
+        "--disable-sync",
+        "--no-first-run",
+        "--disable-quic",
+    ]
     try:
         with sync_playwright() as p:
             browser = p.chromium.launch(executable_path=shutil.which("chromium"), args=flags)
@@ -251,8 +259,10 @@ def main(argv: list[str] | None = None) -> int:
         )
     if args.browser:
         for r in browser_latency(["hobby-tent-4-x-4-ft-peppers", "basement-room-10-x-12-ft-two-benches"]):
-            print(f"browser, pointer move to repainted map: {r['room']}: median {r['median_ms']:.0f} ms, "
-                  f"max {r['max_ms']:.0f} ms")
+            print(
+                f"browser, pointer move to repainted map: {r['room']}: median {r['median_ms']:.0f} ms, "
+                f"max {r['max_ms']:.0f} ms"
+            )
             results.append({"scene": "browser " + r["room"], **r})
     rss = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024
     print(f"peak resident memory of this whole run: {rss:.0f} MiB (traced numpy peak per scene in the table)")

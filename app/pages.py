@@ -103,3 +103,7 @@ def sheet(room_id: str, room_file: RoomFile, analysis: dict[str, Any], paper: st
             "heatmaps": {z["id"]: heatmap_svg(z, room.display_units) for z in analysis["zones"]},
         },
     }
+
+
+def new_fixture(store: RoomStore) -> dict[str, Any]:
+    return {"title": "New fixture type", "rooms": [r.__dict__ for r in store.list()], "version": __version__}

@@ -24,12 +24,16 @@ from app import __version__, pages
 from app.analysis import Region, analyse
 from app.drawings import heatmap_svg
 from app.engine.compute import SceneError
+from app.engine.fitting import fit_ppfd_map, plausibility, predict_at_heights
+from app.engine.spectrum import led_mix, parse_spectrum_csv, spectrum_figures
 from app.library import crop_library, fixture_library
 from app.middleware import BodyLimit, LocalOnly
-from app.models import RoomFile
+from app.models import FixtureType, RoomFile
+from app.photometry import MAX_FILE_BYTES as MAX_PHOTOMETRY_BYTES
+from app.photometry import PhotometryError, fixture_type_from, parse_ies, parse_ldt
 from app.roomfile import Problem, RoomFileError, dump_room_file, parse_room_file, to_json_bytes
 from app.settings import PROJECT_ROOT, Settings
-from app.storage import RoomNotFound, RoomStore, StaleRevision
+from app.storage import RoomNotFound, RoomStore, StaleRevision, slugify
 from app.units import format_area, format_length
 
 TEMPLATES = PROJECT_ROOT / "templates"
@@ -70,6 +74,29 @@ ROOM_BODY = {
         "content": {"application/json": {"schema": {"type": "object"}}},
     }
 }
+
+
+class PeakIn(BaseModel):
+    nm: float = Field(ge=300, le=800)
+    fwhm_nm: float = Field(gt=1, le=300)
+    weight: float = Field(gt=0, le=1e6)
+
+
+class SpectrumIn(BaseModel):
+    csv: str | None = Field(default=None, max_length=200_000, description="wavelength [nm], relative power")
+    peaks: list[PeakIn] | None = Field(
+        default=None, max_length=20, description="LED peaks (a white LED: blue + phosphor)"
+    )
+
+
+class MapFitIn(BaseModel):
+    readings: list[list[float]] = Field(min_length=3, max_length=101, description="PPFD rows, front to back")
+    cell_m: float = Field(gt=0, le=1, description="Spacing of the readings [m]")
+    hanging_height_m: float = Field(gt=0, le=10, description="Height of the fixture above the map [m]")
+    claimed_ppf_umol_s: float | None = Field(default=None, gt=0, le=20000)
+    power_w: float | None = Field(default=None, gt=0, le=10000)
+    ceiling_umol_j: float | None = Field(default=None, gt=0, le=10, description="From the fixture's spectrum, if known")
+    heights_m: list[float] = Field(default_factory=list, max_length=10)
 
 
 class ApiError(Exception):
@@ -323,6 +350,98 @@ def create_app(settings: Settings | None = None) -> FastAPI:
             media_type="image/svg+xml",
             headers={"Content-Disposition": f'attachment; filename="{room_id}-{zone_id}-{quantity}.svg"'},
         )
+
+    # -- photometry -----------------------------------------------------
+    @app.get("/fixtures/new", response_class=HTMLResponse, include_in_schema=False)
+    def new_fixture_page(request: Request, format: str | None = None):
+        return page(request, "fixture_new.html", pages.new_fixture(store), format)
+
+    @app.post(
+        "/api/photometry/import",
+        responses=ERRORS,
+        tags=["photometry"],
+        openapi_extra={"requestBody": {"required": True, "content": {"text/plain": {"schema": {"type": "string"}}}}},
+        summary="Turn an IES LM-63 or EULUMDAT file into a fixture type",
+    )
+    async def import_photometry(
+        request: Request,
+        kind: str = Query("ies", pattern="^(ies|ldt)$"),
+        flux_unit: str = Query("lumen", pattern="^(lumen|photon)$"),
+        umol_per_lumen: float | None = Query(None, gt=0, le=1),
+        power_w: float | None = Query(None, gt=0, le=10000),
+        name: str = Query("", max_length=120),
+    ) -> dict[str, Any]:
+        raw = await request.body()
+        if len(raw) > MAX_PHOTOMETRY_BYTES:
+            raise ApiError(413, "too_large", f"a photometric file over {MAX_PHOTOMETRY_BYTES:,} bytes is refused")
+        text = raw.decode("utf-8", errors="replace")
+        try:
+            ph = parse_ies(text) if kind == "ies" else parse_ldt(text)
+            ftype, report = fixture_type_from(
+                ph,
+                type_id=slugify(name or ph.name or "imported")[:40],
+                name=name or ph.name or "Imported fixture",
+                power_w=power_w,
+                flux_unit=flux_unit,
+                umol_per_lumen=umol_per_lumen,
+            )
+            ftype = FixtureType.model_validate(ftype).model_dump(mode="json")
+        except PhotometryError as exc:
+            raise ApiError(
+                422, "bad_photometry", str(exc), [Problem(f"line {exc.line}" if exc.line else "file", str(exc))]
+            ) from exc
+        except ValueError as exc:
+            raise ApiError(422, "bad_photometry", str(exc)) from exc
+        return {"fixture_type": ftype, "report": report}
+
+    @app.post(
+        "/api/photometry/spectrum",
+        responses=ERRORS,
+        tags=["photometry"],
+        summary="Band shares, photon ceiling and lux-to-PPFD factor of a spectrum",
+    )
+    def spectrum(body: SpectrumIn) -> dict[str, Any]:
+        try:
+            if body.csv:
+                wl, pw = parse_spectrum_csv(body.csv)
+            elif body.peaks:
+                wl, pw = led_mix([p.model_dump() for p in body.peaks])
+            else:
+                raise ValueError("give a spectrum as CSV or as LED peaks")
+            return spectrum_figures(wl, pw)
+        except ValueError as exc:
+            raise ApiError(422, "bad_spectrum", str(exc)) from exc
+
+    @app.post(
+        "/api/photometry/fit",
+        responses=ERRORS,
+        tags=["photometry"],
+        summary="Fit a fixture to a published PPFD map and check the map is plausible",
+    )
+    def fit_map(body: MapFitIn) -> dict[str, Any]:
+        widths = {len(r) for r in body.readings}
+        if len(widths) != 1 or not 3 <= widths.pop() <= 101:
+            raise ApiError(422, "invalid_request", "every row of readings must have the same length, 3 to 101")
+        try:
+            fit = fit_ppfd_map(body.readings, body.cell_m, body.hanging_height_m)
+        except ValueError as exc:
+            raise ApiError(422, "invalid_request", str(exc)) from exc
+        shape = (len(body.readings), len(body.readings[0]))
+        heights = body.heights_m or [round(body.hanging_height_m * f, 3) for f in (0.5, 0.75, 1.0, 1.5, 2.0)]
+        if any(not 0 < h <= 10 for h in heights):
+            raise ApiError(422, "invalid_request", "heights must be between 0 and 10 m")
+        return {
+            "fit": fit,
+            "predictions": predict_at_heights(fit, shape, body.cell_m, heights),
+            "findings": plausibility(
+                body.readings,
+                body.cell_m,
+                body.claimed_ppf_umol_s,
+                body.power_w,
+                fit["ppf_umol_s"],
+                body.ceiling_umol_j,
+            ),
+        }
 
     # -- libraries ------------------------------------------------------
     @app.get("/api/library/fixtures", tags=["library"])

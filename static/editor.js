@@ -340,9 +340,17 @@
   $("delete").addEventListener("click", removeSelected);
 
   // ---------------------------------------------------------------- adding and arranging
-  $("add-type").innerHTML = page.fixture_library.map((t) => `<option value="${t.id}">${escapeHtml(t.name)} · ${t.ppf_umol_s} µmol/s · ${t.power_w} W</option>`).join("");
+  // The room's own fixture types (imported or fitted ones included) first, then the library.
+  function palette() {
+    const seen = new Set();
+    return [...room().fixture_types, ...page.fixture_library].filter((t) => !seen.has(t.id) && seen.add(t.id));
+  }
+  function fillPalette() {
+    const html = palette().map((t) => `<option value="${t.id}">${escapeHtml(t.name)} · ${t.ppf_umol_s} µmol/s · ${t.power_w} W</option>`).join("");
+    if ($("add-type").innerHTML !== html) { const keep = $("add-type").value; $("add-type").innerHTML = html; if (keep) $("add-type").value = keep; }
+  }
   $("add-fixture").addEventListener("click", () => {
-    const lib = page.fixture_library.find((t) => t.id === $("add-type").value);
+    const lib = palette().find((t) => t.id === $("add-type").value);
     let id;
     commit((r) => {
       if (!r.fixture_types.some((t) => t.id === lib.id)) r.fixture_types.push(JSON.parse(JSON.stringify(lib)));
@@ -713,6 +721,7 @@
   }
 
   function render() {
+    fillPalette();
     $("undo").disabled = !state.undo.length;
     $("redo").disabled = !state.redo.length;
     fillSelection();

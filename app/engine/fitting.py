@@ -1,0 +1,199 @@
+"""A fixture from a published PPFD map, and whether that map can be true.
+
+The fit uses the engine itself: for each candidate beam exponent n and square
+emitter side a, the engine's open-air map of a unit-flux emitter at the stated
+hanging height is compared with the readings, and the PPF follows by linear
+least squares (PPF = Σ m·r / Σ m²). The best (n, a) on a coarse grid is then
+refined by a compass search in (ln n, a).
+
+References
+----------
+- Photon ceiling from the Planck relation: see :mod:`app.engine.spectrum`;
+  no PAR photon carries fewer joules than one at 700 nm, so no fixture can
+  exceed 700 × 0.0083593 = 5.85 µmol/J whatever its spectrum.
+- Best measured fixture efficacies: Kusuma P., Pattison P.M. & Bugbee B. (2020),
+  "From physics to fixtures to food: current and potential LED efficacy",
+  Horticulture Research 7:56 (about 3 µmol/J for the best fixtures then; the
+  exact figure here is from memory).
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+from app.engine.direct import direct_patch
+from app.engine.distributions import cosine_power
+from app.engine.scene import Emitter, Grid
+from app.engine.spectrum import umol_per_joule
+
+PAR_CEILING_UMOL_J = float(umol_per_joule(700.0))
+BEST_MEASURED_UMOL_J = 3.1  # from memory of Kusuma, Pattison & Bugbee (2020); see module references
+SUSPICIOUS_MARGIN = 0.10
+
+
+def map_grid(shape: tuple[int, int], cell_m: float) -> Grid:
+    """Points at the centres of the map's cells, the fixture straight above the middle."""
+    ny, nx = shape
+    return Grid(
+        "map", -(nx - 1) * cell_m / 2, -(ny - 1) * cell_m / 2, (nx - 1) * cell_m, (ny - 1) * cell_m, 0.0, cell_m
+    )
+
+
+def model_map(shape, cell_m: float, height_m: float, exponent: float, side_m: float, flux_umol_s: float = 1.0):
+    """Open-air PPFD map [µmol m⁻² s⁻¹] of a square cosⁿ panel (side 0: a point) hung at height_m."""
+    g = map_grid(shape, cell_m)
+    shape_kind = "panel" if side_m > 1e-6 else "point"
+    e = Emitter("fit", 0.0, 0.0, height_m, flux_umol_s, cosine_power(exponent), shape_kind, side_m, side_m)
+    out = np.zeros((g.ny, g.nx))
+    p = direct_patch(e, g, dtype=np.float64)
+    if p is not None:
+        p.add_into(out)
+    return out
+
+
+def _score(readings, cell_m, height_m, n, a):
+    m = model_map(readings.shape, cell_m, height_m, n, a)
+    mm = float((m * m).sum())
+    ppf = float((m * readings).sum()) / mm if mm > 0 else 0.0
+    resid = readings - ppf * m
+    return float(np.sqrt(np.mean(resid**2))), ppf, resid
+
+
+def fit_ppfd_map(readings, cell_m: float, height_m: float, max_side_m: float | None = None) -> dict:
+    """Fit PPF, beam exponent (and beam angle) and emitter size to a map of readings.
+
+    readings : (ny, nx) PPFD at the centres of square cells of side cell_m, fixture above the centre.
+    Returns the fitted figures, the residual per cell and the fit's RMS error relative to the mean.
+    """
+    r = np.asarray(readings, dtype=float)
+    if r.ndim != 2 or min(r.shape) < 3:
+        raise ValueError("the map needs at least 3 × 3 readings")
+    if np.any(r < 0) or not np.all(np.isfinite(r)) or r.max() <= 0:
+        raise ValueError("readings must be finite, non-negative, and not all zero")
+    if cell_m <= 0 or height_m <= 0:
+        raise ValueError("cell size and hanging height must be > 0")
+    span = max_side_m if max_side_m is not None else min(r.shape) * cell_m
+
+    def cost(log_n, side):
+        return _score(r, cell_m, height_m, float(np.exp(log_n)), min(max(side, 0.0), span))[0]
+
+    grid = [(cost(ln, a), ln, a) for ln in np.log(np.geomspace(0.3, 30.0, 20)) for a in np.linspace(0.0, span, 13)]
+    best, ln, a = min(grid, key=lambda t: t[0])
+    # Compass search: try the four neighbours, move on improvement, halve the steps when none improves.
+    step_ln, step_a = 0.25, span / 12
+    for _ in range(200):
+        if step_ln < 1e-4 and step_a < 1e-5:
+            break
+        moves = [(ln + step_ln, a), (ln - step_ln, a), (ln, a + step_a), (ln, max(a - step_a, 0.0))]
+        scored = min(((cost(cl, ca), cl, ca) for cl, ca in moves), key=lambda t: t[0])
+        if scored[0] < best:
+            best, ln, a = scored
+        else:
+            step_ln, step_a = step_ln / 2, step_a / 2
+    n, a = float(np.exp(ln)), min(max(a, 0.0), span)
+    rms, ppf, resid = _score(r, cell_m, height_m, n, a)
+    half = np.degrees(np.arccos(0.5 ** (1 / n)))
+    return {
+        "ppf_umol_s": ppf,
+        "exponent": float(n),
+        "beam_angle_deg": float(2 * half),
+        "side_m": float(a),
+        "rms_error": rms / float(r.mean()),
+        "max_abs_error_umol_m2_s": float(np.abs(resid).max()),
+        "residuals": np.round(resid, 2).tolist(),
+    }
+
+
+def predict_at_heights(fit: dict, shape, cell_m: float, heights_m) -> list[dict]:
+    """The fitted fixture's map at other hanging heights, with its average, peak and centre values."""
+    out = []
+    for h in heights_m:
+        m = model_map(shape, cell_m, float(h), fit["exponent"], fit["side_m"], fit["ppf_umol_s"])
+        ny, nx = m.shape
+        out.append(
+            {
+                "height_m": float(h),
+                "avg": float(m.mean()),
+                "max": float(m.max()),
+                "centre": float(m[ny // 2, nx // 2]),
+                "map": np.round(m, 1).tolist(),
+            }
+        )
+    return out
+
+
+def plausibility(
+    readings,
+    cell_m: float,
+    claimed_ppf_umol_s: float | None,
+    power_w: float | None,
+    fitted_ppf_umol_s: float | None = None,
+    ceiling_umol_j: float | None = None,
+) -> list[dict]:
+    """Checks a published map against physics; each finding says why in numbers.
+
+    A map measured in open air cannot hold more photons than the fixture emits
+    (Σ PPFD × cell area ≤ PPF); PPF per watt cannot exceed the photon ceiling of
+    the spectrum (or 5.85 µmol/J for any PAR spectrum).
+    """
+    r = np.asarray(readings, dtype=float)
+    integral = float(r.sum() * cell_m * cell_m)
+    area = r.size * cell_m * cell_m
+    out = [
+        {
+            "level": "info",
+            "code": "map_integral",
+            "message": f"The map holds {integral:.0f} µmol/s over its {area:.2f} m².",
+        }
+    ]
+    if claimed_ppf_umol_s:
+        if integral > claimed_ppf_umol_s * 1.02:
+            out.append(
+                {
+                    "level": "impossible",
+                    "code": "more_photons_than_emitted",
+                    "message": f"The map holds {integral:.0f} µmol/s, {integral / claimed_ppf_umol_s:.0%} of the "
+                    f"{claimed_ppf_umol_s:.0f} µmol/s the fixture is said to emit: in open air a map "
+                    "cannot hold more photons than the fixture emits (measured with reflectors?).",
+                }
+            )
+        if fitted_ppf_umol_s and fitted_ppf_umol_s > claimed_ppf_umol_s * (1 + SUSPICIOUS_MARGIN):
+            out.append(
+                {
+                    "level": "suspicious",
+                    "code": "map_brighter_than_ppf",
+                    "message": f"Fitting the map needs {fitted_ppf_umol_s:.0f} µmol/s, "
+                    f"{fitted_ppf_umol_s / claimed_ppf_umol_s - 1:.0%} more than the claimed PPF.",
+                }
+            )
+    if claimed_ppf_umol_s and power_w:
+        eff = claimed_ppf_umol_s / power_w
+        ceiling = ceiling_umol_j or PAR_CEILING_UMOL_J
+        basis = "this spectrum" if ceiling_umol_j else "any PAR spectrum (every photon at 700 nm)"
+        if eff > ceiling:
+            out.append(
+                {
+                    "level": "impossible",
+                    "code": "above_photon_ceiling",
+                    "message": f"{eff:.2f} µmol/J is above the {ceiling:.2f} µmol/J that a perfectly efficient "
+                    f"source of {basis} could give (Planck relation).",
+                }
+            )
+        elif eff > BEST_MEASURED_UMOL_J * (1 + SUSPICIOUS_MARGIN):
+            out.append(
+                {
+                    "level": "suspicious",
+                    "code": "above_best_measured",
+                    "message": f"{eff:.2f} µmol/J is well above the best measured fixtures, about "
+                    f"{BEST_MEASURED_UMOL_J:g} µmol/J (Kusuma, Pattison & Bugbee 2020; from memory).",
+                }
+            )
+        else:
+            out.append(
+                {
+                    "level": "info",
+                    "code": "efficacy",
+                    "message": f"{eff:.2f} µmol/J: within what measured fixtures reach.",
+                }
+            )
+    return out

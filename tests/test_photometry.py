@@ -1,0 +1,232 @@
+"""IES LM-63 and EULUMDAT import: the zonal method on files whose flux is known exactly; malformed files refused."""
+
+import numpy as np
+import pytest
+from numpy.testing import assert_allclose
+
+from app.engine.compute import compute_scene
+from app.engine.distributions import lambertian
+from app.engine.scene import Emitter, Enclosure, Grid
+from app.models import FixtureType
+from app.photometry import MAX_FILE_BYTES, PhotometryError, fixture_type_from, parse_ies, parse_ldt
+from app.scene_builder import emitter_for
+
+I0 = 1000.0  # candela at nadir of a Lambertian luminaire: its flux is exactly π·I0 (Lambert)
+
+
+def ies_text(
+    header="IESNA:LM-63-2002", horizontal=(0.0,), vertical=None, ptype=1, tilt="NONE", lumens=None, table=None, extra=""
+):
+    v = np.arange(0, 91, 2.5) if vertical is None else np.asarray(vertical)
+    h = list(horizontal)
+    cd = table if table is not None else [[I0 * np.cos(np.radians(a)) for a in v] for _ in h]
+    lm = np.pi * I0 if lumens is None else lumens
+    lines = [header] if header else []
+    lines += ["[TEST] synthetic Lambertian", "[MANUFAC] none", "[LUMINAIRE] Test panel"]
+    lines.append(f"TILT={tilt}")
+    if tilt == "INCLUDE":
+        lines += ["1", "3", "0 45 90", "1.0 0.95 0.9"]
+    lines.append(f"1 {lm:.6f} 1 {len(v)} {len(h)} {ptype} 2 0.6 0.6 0.05")
+    lines.append("1.0 1.0 210")
+    lines.append(" ".join(f"{a:g}" for a in v))
+    lines.append(" ".join(f"{a:g}" for a in h))
+    for row in cd:
+        # Long rows wrap across lines, as real files do.
+        vals = [f"{c:.4f}" for c in row]
+        for k in range(0, len(vals), 10):
+            lines.append(" ".join(vals[k : k + 10]))
+    return "\n".join(lines) + extra + "\n"
+
+
+@pytest.mark.parametrize("header", ["", "IESNA:LM-63-1995", "IESNA:LM-63-2002", "IES:LM-63-2019"])
+def test_zonal_flux_of_a_synthetic_lambertian_file(header):
+    ph = parse_ies(ies_text(header))
+    # Zonal method: Φ = Σ Ī_zone 2π (cos θ₁ − cos θ₂) against the exact π·I0 (2.5° zones).
+    assert_allclose(ph.zonal_flux, np.pi * I0, rtol=5e-4)
+    assert_allclose(ph.declared_flux, np.pi * I0, rtol=1e-6)
+    assert (ph.width_m, ph.length_m) == (0.6, 0.6)
+
+
+@pytest.mark.parametrize(
+    "horizontal", [(0.0,), (0, 45, 90), (0, 45, 90, 135, 180), (90, 135, 180, 225, 270), tuple(range(0, 361, 45))]
+)
+def test_horizontal_symmetries_expand_to_the_full_circle(horizontal):
+    ph = parse_ies(ies_text(horizontal=horizontal))
+    assert_allclose(ph.zonal_flux, np.pi * I0, rtol=5e-4)
+    if len(horizontal) > 1:
+        assert ph.azimuth_deg[0] == 0 and max(ph.azimuth_deg) < 360 and len(ph.azimuth_deg) >= 8
+
+
+def test_quadrant_symmetry_mirrors_the_values():
+    v = [0, 30, 60, 90]
+    table = [[100, 80, 40, 0], [200, 160, 80, 0], [300, 240, 120, 0]]  # at 0, 45, 90
+    ph = parse_ies(ies_text(horizontal=(0, 45, 90), vertical=v, table=table))
+    rows = dict(zip(ph.azimuth_deg, ph.candela, strict=True))
+    assert rows[135.0] == rows[45.0] and rows[180.0] == rows[0.0] and rows[270.0] == rows[90.0]
+    assert rows[315.0] == rows[45.0]
+
+
+def test_tilt_included_is_read():
+    ph = parse_ies(ies_text(tilt="INCLUDE"))
+    assert any("tilt data included" in n for n in ph.notes)
+    assert_allclose(ph.zonal_flux, np.pi * I0, rtol=5e-4)
+
+
+@pytest.mark.parametrize("ptype, letter", [(2, "B"), (3, "A")])
+def test_type_a_and_b_refused(ptype, letter):
+    with pytest.raises(PhotometryError, match=f"type {letter} is not supported") as exc:
+        parse_ies(ies_text(ptype=ptype))
+    assert exc.value.line is not None
+
+
+def test_truncated_table_names_the_line():
+    text = ies_text()
+    cut = "\n".join(text.splitlines()[:-2])
+    with pytest.raises(PhotometryError, match="truncated") as exc:
+        parse_ies(cut)
+    assert exc.value.line == len(cut.splitlines())
+
+
+def test_non_numeric_value_names_line_and_reason():
+    lines = ies_text().splitlines()
+    lines[-1] = lines[-1].replace(lines[-1].split()[2], "twelve")
+    with pytest.raises(PhotometryError, match="'twelve' is not a number") as exc:
+        parse_ies("\n".join(lines))
+    assert exc.value.line == len(lines)
+
+
+def test_wrong_counts_refused():
+    with pytest.raises(PhotometryError, match="after the candela table"):
+        parse_ies(ies_text(extra="\n1 2 3"))
+    bad = ies_text().replace("1 3141.592654 1 37 1 1 2", "1 3141.592654 1 0 1 1 2")
+    with pytest.raises(PhotometryError, match="number of vertical angles"):
+        parse_ies(bad)
+
+
+def test_not_ies_and_external_tilt_refused():
+    with pytest.raises(PhotometryError, match="not an IES"):
+        parse_ies("hello\nworld\n")
+    with pytest.raises(PhotometryError, match="separate tilt file"):
+        parse_ies(ies_text(tilt="lamp.tlt"))
+
+
+def test_huge_file_refused_by_size():
+    with pytest.raises(PhotometryError, match="larger than"):
+        parse_ies("x" * (MAX_FILE_BYTES + 1))
+
+
+def ldt_text(isym=1, lamp_flux=2000.0, gammas=None, planes=None):
+    g = np.arange(0, 181, 5.0) if gammas is None else np.asarray(gammas)
+    mc = 24
+    c = np.arange(0, 360, 15.0)
+    # cd per 1000 lm of lamp flux: a Lambertian emitter of 1000 lm has I0 = 1000/π.
+    profile = [1000 / np.pi * max(np.cos(np.radians(a)), 0) for a in g]
+    nplanes = {0: mc, 1: 1, 2: mc // 2 + 1, 3: mc // 2 + 1, 4: mc // 4 + 1}[isym]
+    lines = [
+        "Generic maker",
+        "1",
+        str(isym),
+        str(mc),
+        "15",
+        str(len(g)),
+        "5",
+        "report 1",
+        "Test panel",
+        "TP-1",
+        "test.ldt",
+        "2026-12-01",
+        "600",
+        "600",
+        "50",
+        "600",
+        "600",
+        "0",
+        "0",
+        "0",
+        "0",
+        "100",
+        "100",
+        "1.0",
+        "0",
+        "1",
+        "1",
+        "LED",
+        f"{lamp_flux:g}",
+        "4000",
+        "80",
+        "210",
+    ]
+    lines += ["0.5"] * 10
+    lines += [f"{a:g}" for a in c]
+    lines += [f"{a:g}" for a in g]
+    for _ in range(planes if planes is not None else nplanes):
+        lines += [f"{x:.5f}" for x in profile]
+    return "\n".join(lines) + "\n"
+
+
+@pytest.mark.parametrize("isym", [0, 1, 2, 3, 4])
+def test_eulumdat_lambertian_flux(isym):
+    ph = parse_ldt(ldt_text(isym))
+    assert_allclose(ph.zonal_flux, 2000.0, rtol=2e-3)  # Lambertian: Φ = π I0, I0 = 2 klm × 1000/π cd/klm
+    assert ph.declared_flux == 2000.0
+    assert (ph.width_m, ph.length_m) == (0.6, 0.6)
+
+
+def test_eulumdat_wrong_counts_refused():
+    with pytest.raises(PhotometryError, match="after the intensity table"):
+        parse_ldt(ldt_text(1, planes=2))
+    with pytest.raises(PhotometryError, match="ends early"):
+        parse_ldt("\n".join(ldt_text(1).splitlines()[:-5]))
+
+
+def test_imported_file_lights_the_canopy_like_the_lambertian_it_describes():
+    ph = parse_ies(ies_text(vertical=np.arange(0, 91, 1.0)))
+    ftype, report = fixture_type_from(ph, type_id="imp", name="Imported", power_w=None, flux_unit="photon")
+    t = FixtureType.model_validate(ftype)
+    assert report["upward_share"] == pytest.approx(0.0, abs=1e-9)
+    assert_allclose(t.ppf_umol_s, np.pi * I0, rtol=1e-3)
+    t = t.model_copy(update={"geometry": t.geometry.model_copy(update={"kind": "point", "length_m": 0, "width_m": 0})})
+    imported = emitter_for("F1", t, 0.0, 0.0, 1.0, 0.0, 100.0)
+    reference = Emitter("R", 0.0, 0.0, 1.0, t.ppf_umol_s, lambertian())
+    g = Grid("g", -1, -1, 2, 2, 0.0, 0.1)
+    enc = Enclosure(10, 10, 3)
+    a, b = (compute_scene((e,), (g,), enc)[0].ppfd for e in (imported, reference))
+    assert_allclose(a, b, rtol=0.01)
+
+
+def test_lumens_need_a_factor():
+    ph = parse_ies(ies_text())
+    with pytest.raises(PhotometryError, match="µmol-per-lumen"):
+        fixture_type_from(ph, type_id="x", name="x", power_w=100, flux_unit="lumen")
+    ftype, report = fixture_type_from(ph, type_id="x", name="x", power_w=100, umol_per_lumen=0.0135)
+    assert_allclose(ftype["ppf_umol_s"], np.pi * I0 * 0.0135, rtol=1e-3)
+
+
+def test_api_import_fit_and_spectrum(client):
+    r = client.post(
+        "/api/photometry/import",
+        params={"kind": "ies", "flux_unit": "photon", "name": "Test panel"},
+        content=ies_text().encode(),
+        headers={"Content-Type": "text/plain"},
+    )
+    assert r.status_code == 200, r.text
+    assert r.json()["fixture_type"]["beam"]["kind"] == "tabulated"
+    bad = client.post(
+        "/api/photometry/import",
+        params={"kind": "ies", "flux_unit": "photon"},
+        content=ies_text(ptype=3).encode(),
+        headers={"Content-Type": "text/plain"},
+    )
+    assert bad.status_code == 422 and "type A" in bad.json()["message"] and "line" in bad.json()["message"]
+    readings = [[100.0 + 10 * min(i, 4 - i, j, 4 - j) for i in range(5)] for j in range(5)]
+    f = client.post(
+        "/api/photometry/fit",
+        json={"readings": readings, "cell_m": 0.15, "hanging_height_m": 0.45, "claimed_ppf_umol_s": 20, "power_w": 10},
+    )
+    assert f.status_code == 200
+    levels = {x["code"]: x["level"] for x in f.json()["findings"]}
+    assert levels["more_photons_than_emitted"] == "impossible"
+    s = client.post("/api/photometry/spectrum", json={"peaks": [{"nm": 660, "fwhm_nm": 20, "weight": 1}]})
+    assert s.status_code == 200 and s.json()["red_600_700"] > 0.99
+    assert client.post("/api/photometry/spectrum", json={}).status_code == 422
+    assert client.get("/fixtures/new").status_code == 200
