@@ -24,7 +24,7 @@ from app import __version__, pages
 from app.analysis import Region, analyse
 from app.drawings import heatmap_svg
 from app.engine.compute import SceneError
-from app.engine.fitting import fit_ppfd_map, plausibility, predict_at_heights
+from app.engine.fitting import efficacy_findings, fit_ppfd_map, plausibility, predict_at_heights
 from app.engine.spectrum import led_mix, parse_spectrum_csv, spectrum_figures
 from app.library import crop_library, fixture_library
 from app.middleware import BodyLimit, LocalOnly
@@ -386,6 +386,7 @@ def create_app(settings: Settings | None = None) -> FastAPI:
                 umol_per_lumen=umol_per_lumen,
             )
             ftype = FixtureType.model_validate(ftype).model_dump(mode="json")
+            report["findings"] = efficacy_findings(ftype["ppf_umol_s"], ftype["power_w"])
         except PhotometryError as exc:
             raise ApiError(
                 422, "bad_photometry", str(exc), [Problem(f"line {exc.line}" if exc.line else "file", str(exc))]

@@ -45,7 +45,8 @@
           <tr><th scope="row">Flux the file declares</th><td>${r.declared_flux ? fmt(r.declared_flux) : "none (absolute photometry)"}${r.zonal_over_declared ? ` · zonal/declared ${fmt(r.zonal_over_declared, 3)}` : ""}</td></tr>
           <tr><th scope="row">Upward share (not modelled)</th><td>${fmt(100 * r.upward_share, 1)} %</td></tr>
           <tr><th scope="row">PPF of the fixture type</th><td>${fmt(r.ppf_umol_s)} µmol/s · ${fmt(r.umol_per_j, 2)} µmol/J</td></tr>
-          <tr><th scope="row">Notes</th><td>${r.notes.map(esc).join("; ")}</td></tr></tbody></table>`;
+          <tr><th scope="row">Notes</th><td>${r.notes.map(esc).join("; ")}</td></tr></tbody></table>
+          <ul class="warnings">${r.findings.map((x) => `<li class="${x.level}"><strong>${x.level}</strong> ${esc(x.message)}</li>`).join("")}</ul>`;
         const b = out.fixture_type.beam;
         const traces = b.azimuth_deg.filter((a, i) => i === 0 || Math.abs(a - 90) < 1e-6).map((a) => ({
           type: "scatter", mode: "lines", name: `plane ${a}°`, x: b.polar_deg,

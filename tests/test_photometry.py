@@ -211,6 +211,8 @@ def test_api_import_fit_and_spectrum(client):
     )
     assert r.status_code == 200, r.text
     assert r.json()["fixture_type"]["beam"]["kind"] == "tabulated"
+    # 3142 µmol/s from 210 W is 15 µmol/J: above the Planck-relation ceiling, and said so.
+    assert r.json()["report"]["findings"][0]["code"] == "above_photon_ceiling"
     bad = client.post(
         "/api/photometry/import",
         params={"kind": "ies", "flux_unit": "photon"},

@@ -167,33 +167,36 @@ def plausibility(
                 }
             )
     if claimed_ppf_umol_s and power_w:
-        eff = claimed_ppf_umol_s / power_w
-        ceiling = ceiling_umol_j or PAR_CEILING_UMOL_J
-        basis = "this spectrum" if ceiling_umol_j else "any PAR spectrum (every photon at 700 nm)"
-        if eff > ceiling:
-            out.append(
-                {
-                    "level": "impossible",
-                    "code": "above_photon_ceiling",
-                    "message": f"{eff:.2f} µmol/J is above the {ceiling:.2f} µmol/J that a perfectly efficient "
-                    f"source of {basis} could give (Planck relation).",
-                }
-            )
-        elif eff > BEST_MEASURED_UMOL_J * (1 + SUSPICIOUS_MARGIN):
-            out.append(
-                {
-                    "level": "suspicious",
-                    "code": "above_best_measured",
-                    "message": f"{eff:.2f} µmol/J is well above the best measured fixtures, about "
-                    f"{BEST_MEASURED_UMOL_J:g} µmol/J (Kusuma, Pattison & Bugbee 2020; from memory).",
-                }
-            )
-        else:
-            out.append(
-                {
-                    "level": "info",
-                    "code": "efficacy",
-                    "message": f"{eff:.2f} µmol/J: within what measured fixtures reach.",
-                }
-            )
+        out += efficacy_findings(claimed_ppf_umol_s, power_w, ceiling_umol_j)
+    return out
+
+
+def efficacy_findings(ppf_umol_s: float, power_w: float, ceiling_umol_j: float | None = None) -> list[dict]:
+    """PPF per watt against the photon ceiling (Planck relation) and the best measured fixtures."""
+    out = []
+    eff = ppf_umol_s / power_w
+    ceiling = ceiling_umol_j or PAR_CEILING_UMOL_J
+    basis = "this spectrum" if ceiling_umol_j else "any PAR spectrum (every photon at 700 nm)"
+    if eff > ceiling:
+        out.append(
+            {
+                "level": "impossible",
+                "code": "above_photon_ceiling",
+                "message": f"{eff:.2f} µmol/J is above the {ceiling:.2f} µmol/J that a perfectly efficient "
+                f"source of {basis} could give (Planck relation).",
+            }
+        )
+    elif eff > BEST_MEASURED_UMOL_J * (1 + SUSPICIOUS_MARGIN):
+        out.append(
+            {
+                "level": "suspicious",
+                "code": "above_best_measured",
+                "message": f"{eff:.2f} µmol/J is well above the best measured fixtures, about "
+                f"{BEST_MEASURED_UMOL_J:g} µmol/J (Kusuma, Pattison & Bugbee 2020; from memory).",
+            }
+        )
+    else:
+        out.append(
+            {"level": "info", "code": "efficacy", "message": f"{eff:.2f} µmol/J: within what measured fixtures reach."}
+        )
     return out
