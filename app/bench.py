@@ -219,6 +219,7 @@ def main(argv: list[str] | None = None) -> int:
     ap.add_argument("--repeats", type=int, default=9)
     ap.add_argument("--no-farm", action="store_true", help="skip the 1,000-fixture vertical farm")
     ap.add_argument("--json", type=Path, help="also write the figures to this file")
+    ap.add_argument("--no-planner", action="store_true", help="skip the planner timings")
     ap.add_argument("--browser", action="store_true", help="also time pointer move to repainted map in Chromium")
     args = ap.parse_args(argv)
     rng = np.random.default_rng(1)
@@ -257,6 +258,24 @@ def main(argv: list[str] | None = None) -> int:
             f"{r['drag_ms']:>9.1f}{r['peak_mib']:>10.1f}"
             + (f"{r['brute_ms']:>10.0f}{r['speedup']:>8.1f}x{r['rms_vs_brute']:>9.2%}" if "brute_ms" in r else "")
         )
+    if not args.no_planner:
+        from app.planner import PlanOptions, plan
+
+        for name, types in (
+            ("hobby-tent-peppers", ("bararray-4x0.6", "panel-0.6")),
+            ("basement-two-benches", ("panel-0.6", "bararray-6x1.0")),
+        ):
+            rf = parse_room_file((PROJECT_ROOT / "sample_rooms" / f"{name}.json").read_bytes())
+            runs = []
+            for _ in range(3):
+                clear_all_caches()  # every run starts cold: no footprint from an earlier run is reused
+                runs.append(plan(rf, PlanOptions(type_ids=types)))
+            first = statistics.median(r["first_feasible_s"] or float("nan") for r in runs)
+            final = statistics.median(r["elapsed_s"] for r in runs)
+            print(
+                f"planner, {name} ({', '.join(types)}): first feasible layout {first:.2f} s, final answer {final:.2f} s"
+            )
+            results.append({"scene": f"planner {name}", "first_feasible_s": first, "final_s": final})
     if args.browser:
         for r in browser_latency(["hobby-tent-4-x-4-ft-peppers", "basement-room-10-x-12-ft-two-benches"]):
             print(

@@ -107,3 +107,28 @@ def sheet(room_id: str, room_file: RoomFile, analysis: dict[str, Any], paper: st
 
 def new_fixture(store: RoomStore) -> dict[str, Any]:
     return {"title": "New fixture type", "rooms": [r.__dict__ for r in store.list()], "version": __version__}
+
+
+def planner(room_id: str, room_file: RoomFile) -> dict[str, Any]:
+    room = room_file.room
+    seen, types = set(), []
+    for t in [*room.fixture_types, *fixture_library().values()]:
+        if t.id not in seen:
+            seen.add(t.id)
+            types.append(
+                {
+                    "id": t.id,
+                    "name": t.name,
+                    "ppf_umol_s": t.ppf_umol_s,
+                    "power_w": t.power_w,
+                    "in_room": any(f.type_id == t.id for f in room.fixtures),
+                }
+            )
+    return {
+        "title": f"Planner: {room.name}",
+        "room_id": room_id,
+        "room_file": dump_room_file(room_file),
+        "fixture_types": types,
+        "zones": [{"id": z.id, "name": z.name} for z in room.zones],
+        "version": __version__,
+    }

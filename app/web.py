@@ -31,6 +31,7 @@ from app.middleware import BodyLimit, LocalOnly
 from app.models import FixtureType, RoomFile
 from app.photometry import MAX_FILE_BYTES as MAX_PHOTOMETRY_BYTES
 from app.photometry import PhotometryError, fixture_type_from, parse_ies, parse_ldt
+from app.planner import JobBoard, PlanOptions, check_setup, curves
 from app.roomfile import Problem, RoomFileError, dump_room_file, parse_room_file, to_json_bytes
 from app.settings import PROJECT_ROOT, Settings
 from app.storage import RoomNotFound, RoomStore, StaleRevision, slugify
@@ -97,6 +98,16 @@ class MapFitIn(BaseModel):
     power_w: float | None = Field(default=None, gt=0, le=10000)
     ceiling_umol_j: float | None = Field(default=None, gt=0, le=10, description="From the fixture's spectrum, if known")
     heights_m: list[float] = Field(default_factory=list, max_length=10)
+
+
+class PlanIn(BaseModel):
+    type_ids: list[str] = Field(default_factory=list, max_length=20, description="Candidate fixture types")
+    objective: str = Field(
+        default="power", pattern="^(power|count)$", description="Least input power, or fewest fixtures"
+    )
+    max_power_w: float | None = Field(default=None, gt=0, le=1e7, description="Power budget for the whole room [W]")
+    min_clearance_m: float = Field(default=0.15, ge=0.02, le=3, description="Least height above the canopy [m]")
+    seed: int = Field(default=0, ge=0, le=2**31)
 
 
 class ApiError(Exception):
@@ -350,6 +361,71 @@ def create_app(settings: Settings | None = None) -> FastAPI:
             media_type="image/svg+xml",
             headers={"Content-Disposition": f'attachment; filename="{room_id}-{zone_id}-{quantity}.svg"'},
         )
+
+    # -- planner --------------------------------------------------------
+    jobs = JobBoard()
+
+    @app.get("/rooms/{room_id}/plan", response_class=HTMLResponse, include_in_schema=False)
+    def plan_page(request: Request, room_id: str, format: str | None = None):
+        rf = load(room_id)
+        return page(request, "plan.html", pages.planner(room_id, rf), format)
+
+    @app.post(
+        "/api/rooms/{room_id}/plan",
+        status_code=202,
+        responses=ERRORS,
+        tags=["planner"],
+        summary="Start the layout planner in the background; poll the job",
+    )
+    def start_plan(room_id: str, body: PlanIn) -> dict[str, Any]:
+        rf = load(room_id)
+        opts = PlanOptions(
+            type_ids=tuple(body.type_ids),
+            objective=body.objective,
+            max_power_w=body.max_power_w,
+            min_clearance_m=body.min_clearance_m,
+            seed=body.seed,
+        )
+        job = jobs.start(room_id, rf, opts)
+        return {"job_id": job.id, "revision": rf.revision}
+
+    @app.get("/api/plan-jobs/{job_id}", responses=ERRORS, tags=["planner"], summary="Progress and best layouts so far")
+    def plan_job(job_id: str) -> dict[str, Any]:
+        job = jobs.get(job_id)
+        if job is None:
+            raise ApiError(404, "not_found", f"no planner job '{job_id}'")
+        return job.public()
+
+    @app.delete("/api/plan-jobs/{job_id}", responses=ERRORS, tags=["planner"], summary="Cancel a planner job")
+    def cancel_job(job_id: str) -> dict[str, Any]:
+        job = jobs.get(job_id)
+        if job is None:
+            raise ApiError(404, "not_found", f"no planner job '{job_id}'")
+        job.cancel.set()
+        return job.public()
+
+    @app.get(
+        "/api/rooms/{room_id}/check",
+        responses=ERRORS,
+        tags=["planner"],
+        summary="Does the room meet each zone's target? If not, the smallest changes that do",
+    )
+    def check_room(room_id: str) -> dict[str, Any]:
+        return check_setup(load(room_id))
+
+    @app.get(
+        "/api/rooms/{room_id}/curves",
+        responses=ERRORS,
+        tags=["planner"],
+        summary="Average and peak PPFD against hanging height and dimming",
+    )
+    def room_curves(
+        room_id: str, zone: str = Query(..., max_length=40), fixture: list[str] = Query(default=[], max_length=200)
+    ) -> dict[str, Any]:
+        try:
+            return curves(load(room_id), zone, tuple(fixture))
+        except (ValueError, StopIteration) as exc:
+            raise ApiError(422, "invalid_request", str(exc) or f"no zone '{zone}'") from exc
 
     # -- photometry -----------------------------------------------------
     @app.get("/fixtures/new", response_class=HTMLResponse, include_in_schema=False)
