@@ -18,6 +18,7 @@
     mapZone: page.room_file.room.zones[0] ? page.room_file.room.zones[0].id : null,
     tier: "",
     snap: false, snapStep: 0.0254,
+    regions: [],                     // areas drawn to compare (not saved in the room file)
   };
   window.leafcast = state; // for the browser tests and the curious
 
@@ -65,8 +66,10 @@
     const mine = ++seq;
     const started = performance.now();
     try {
-      const res = await fetch("/api/analyze", { method: "POST", headers: { "Content-Type": "application/json" },
-                                                body: JSON.stringify(state.doc) });
+      const q = new URLSearchParams();
+      for (const r of state.regions) q.append("region", [r.name.replace(/,/g, " "), r.x_m, r.y_m, r.width_m, r.length_m].join(","));
+      const res = await fetch(`/api/analyze?${q}`, { method: "POST", headers: { "Content-Type": "application/json" },
+                                                    body: JSON.stringify(state.doc) });
       const body = await res.json();
       if (mine > applied) {            // never let an older answer overwrite a newer one
         if (res.ok) {
@@ -223,8 +226,19 @@
       requestAnalysis();
     },
     onDragEnd() { dragging = null; changed(); },
+    onArea(x, y, w, l) {
+      if (w < 0.02 || l < 0.02) return;
+      if (state.regions.length >= 4) state.regions.shift();
+      const n = (state.regionCount = (state.regionCount || 0) + 1);
+      state.regions.push({ name: `Area ${n}`, x_m: round4(x), y_m: round4(y), width_m: round4(w), length_m: round4(l) });
+      render();
+      requestAnalysis();
+    },
   });
-  function planOpts() { return { units: state.units, selection: state.selection, tier: state.tier, readout: $("readout").checked }; }
+  function planOpts() {
+    return { units: state.units, selection: state.selection, tier: state.tier, readout: $("readout").checked, regions: state.regions };
+  }
+  $("area-mode").addEventListener("change", () => { plan.areaMode = $("area-mode").checked; });
 
   // ---------------------------------------------------------------- keyboard
   document.addEventListener("keydown", (ev) => {
@@ -600,6 +614,7 @@
     zsel.value = state.mapZone;
     drawMap();
     renderFigures(a);
+    renderRegions(a);
     renderWarnings(a);
   }
 
@@ -665,6 +680,17 @@
     }
     html += "</tbody></table>";
     $("figures").innerHTML = html;
+  }
+
+  function renderRegions(a) {
+    const host = $("regions");
+    if (!state.regions.length) { host.innerHTML = ""; return; }
+    const rows = (a.regions || []).map((r) => `<tr><th scope="row">${escapeHtml(r.name)} · ${escapeHtml(r.zone_id)}</th>
+      <td>${fmt(r.ppfd.avg)} / ${fmt(r.ppfd.min)} / ${fmt(r.ppfd.max)}</td><td>${fmt(r.ppfd.min_over_avg, 2)}</td><td>${Units.area(r.area_m2, state.units)}</td></tr>`).join("");
+    host.innerHTML = `<table class="figures"><caption>Drawn areas (PPFD) <button type="button" id="clear-areas">Clear areas</button></caption>
+      <thead><tr><th scope="col">Area · zone</th><th scope="col">avg / min / max</th><th scope="col">min/avg</th><th scope="col">Canopy area</th></tr></thead>
+      <tbody>${rows || "<tr><td colspan='4'>The areas cover no canopy.</td></tr>"}</tbody></table>`;
+    $("clear-areas").addEventListener("click", () => { state.regions = []; render(); requestAnalysis(); });
   }
 
   function renderWarnings(a) {

@@ -22,6 +22,7 @@ const Plan = (function () {
     let drag = null;
     let last = null;
     let highlight = null;
+    let areaMode = false;
 
     function size() {
       const r = svg.getBoundingClientRect();
@@ -143,6 +144,17 @@ const Plan = (function () {
       sl.textContent = Units.length(stepM, units);
       const front = el("text", { x: x0 + 4, y: y0 + room.length_m * view.scale - 4, class: "side-label" }, svg);
       front.textContent = "front";
+      for (const r of opts.regions || []) {
+        const [rx, ry] = toScreen(r.x_m, r.y_m + r.length_m);
+        el("rect", { x: rx, y: ry, width: r.width_m * view.scale, height: r.length_m * view.scale, class: "region" }, svg);
+        const t = el("text", { x: rx + 3, y: ry - 3, class: "region-label" }, svg);
+        t.textContent = r.name;
+      }
+      if (drag && drag.kind === "area") {
+        const [x0, y0] = drag.start, [x1, y1] = drag.end;
+        const [rx, ry] = toScreen(Math.min(x0, x1), Math.max(y0, y1));
+        el("rect", { x: rx, y: ry, width: Math.abs(x1 - x0) * view.scale, height: Math.abs(y1 - y0) * view.scale, class: "region drawing" }, svg);
+      }
       if (highlight) drawHighlight(highlight);
     }
 
@@ -185,7 +197,9 @@ const Plan = (function () {
       const target = ev.target.closest("[data-fixture-id]");
       svg.setPointerCapture(ev.pointerId);
       const [px, py] = local(ev);
-      if (target) {
+      if (areaMode) {
+        drag = { kind: "area", start: toRoom(px, py), end: toRoom(px, py), moved: false };
+      } else if (target) {
         const id = target.getAttribute("data-fixture-id");
         cb.onPick(id, ev.shiftKey || ev.ctrlKey || ev.metaKey);
         drag = { kind: "fixture", id, start: toRoom(px, py), moved: false };
@@ -198,6 +212,12 @@ const Plan = (function () {
     svg.addEventListener("pointermove", (ev) => {
       if (!drag) return;
       const [px, py] = local(ev);
+      if (drag.kind === "area") {
+        drag.end = toRoom(px, py);
+        drag.moved = true;
+        rerender();
+        return;
+      }
       if (drag.kind === "fixture") {
         const [x, y] = toRoom(px, py);
         const dx = x - drag.start[0], dy = y - drag.start[1];
@@ -214,6 +234,10 @@ const Plan = (function () {
     function endDrag(ev) {
       if (!drag) return;
       if (drag.kind === "fixture" && drag.moved) cb.onDragEnd();
+      if (drag.kind === "area" && drag.moved) {
+        const [x0, y0] = drag.start, [x1, y1] = drag.end;
+        cb.onArea(Math.min(x0, x1), Math.min(y0, y1), Math.abs(x1 - x0), Math.abs(y1 - y0));
+      }
       drag = null;
       try { svg.releasePointerCapture(ev.pointerId); } catch (e) { /* already released */ }
     }
@@ -248,6 +272,7 @@ const Plan = (function () {
         return [r.left + px, r.top + py];
       },
       get scale() { return view.scale; },
+      set areaMode(on) { areaMode = on; svg.classList.toggle("area-mode", on); },
     };
   }
   return { create };

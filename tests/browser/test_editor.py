@@ -131,3 +131,22 @@ def test_keyboard_nudge_and_add_fixture(live_server, page):
     wait_saved(page, rev)
     doc = api(live_server, f"/api/rooms/{room}")
     assert len(doc["room"]["fixtures"]) == 3 and any(t["id"] == "spot-90" for t in doc["room"]["fixture_types"])
+
+
+def test_drawn_area_gets_its_own_figures(live_server, page):
+    room = fresh_room(live_server, name="Area test tent")
+    page.goto(f"{live_server}/rooms/{room}")
+    wait_analysis_idle(page)
+    page.check("#area-mode")
+    box = page.locator("#plan .zone").first.bounding_box()
+    x, y = box["x"] + box["width"] * 0.4, box["y"] + box["height"] * 0.4
+    page.mouse.move(x, y)
+    page.mouse.down()
+    page.mouse.move(x + 40, y + 30, steps=5)
+    page.mouse.up()
+    page.wait_for_selector("#regions table tbody tr th")
+    assert "Area 1" in page.locator("#regions").inner_text()
+    regions = page.evaluate("() => window.leafcast.analysis.regions")
+    assert regions and regions[0]["ppfd"]["avg"] > 0
+    page.click("#clear-areas")
+    page.wait_for_function("() => document.getElementById('regions').innerText === ''")
