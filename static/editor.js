@@ -21,6 +21,16 @@
     regions: [],                     // areas drawn to compare (not saved in the room file)
   };
   window.leafcast = state; // for the browser tests and the curious
+  // Stacked tiers drawn together hide each other: start on the lowest tier when zones overlap on the plan.
+  (function pickTier() {
+    const zs = page.room_file.room.zones;
+    const overlap = zs.some((a, i) => zs.some((b, j) => j > i && a.x_m < b.x_m + b.width_m && b.x_m < a.x_m + a.width_m
+      && a.y_m < b.y_m + b.length_m && b.y_m < a.y_m + a.length_m));
+    if (overlap) {
+      state.tier = [...zs].sort((a, b) => a.canopy_height_m - b.canopy_height_m)[0].id;
+      state.mapZone = state.tier;
+    }
+  })();
 
   // ---------------------------------------------------------------- history
   function snapshot() { return JSON.stringify(state.doc.room); }

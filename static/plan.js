@@ -119,7 +119,11 @@ const Plan = (function () {
           if (opts.readout && a.grid) drawReadout(a);
         }
       }
+      // With one tier shown, draw only the obstacles between its canopy and the shelf right above it.
+      const shown = tier ? room.zones.find((z) => z.id === tier) : null;
+      const cover = shown ? Math.min(...room.obstacles.filter((o) => o.z_m >= shown.canopy_height_m).map((o) => o.z_m), Infinity) : Infinity;
       for (const o of room.obstacles) {
+        if (shown && (o.z_m + o.height_m < shown.canopy_height_m - 0.1 || o.z_m > cover + 1e-6)) continue;
         const [ox, oy] = toScreen(o.x_m, o.y_m + o.length_m);
         el("rect", { x: ox, y: oy, width: o.width_m * view.scale, height: o.length_m * view.scale, class: "obstacle" }, svg);
         const t = el("text", { x: ox + 4, y: oy + o.length_m * view.scale - 4, class: "obstacle-label" }, svg);
@@ -226,6 +230,7 @@ const Plan = (function () {
         cb.onDrag(dx, dy);
       } else {
         drag.moved = true;
+        userMoved = true;
         view.cx = drag.centre[0] - (px - drag.start[0]) / view.scale;
         view.cy = drag.centre[1] + (py - drag.start[1]) / view.scale;
         rerender();
@@ -249,6 +254,7 @@ const Plan = (function () {
     }, { passive: false });
 
     function zoomAt(point, factor) {
+      userMoved = true;
       const before = toRoom(point[0], point[1]);
       view.scale *= factor;
       const after = toRoom(point[0], point[1]);
@@ -257,12 +263,14 @@ const Plan = (function () {
       rerender();
     }
     function rerender() { if (last) render(last.doc, last.analysis, last.opts); }
-    window.addEventListener("resize", () => { if (last) { fit(last.doc.room); rerender(); } });
+    // Refit when the drawing area changes size, until the grower zooms or pans by hand.
+    let userMoved = false;
+    new ResizeObserver(() => { if (last) { if (!userMoved) fit(last.doc.room); rerender(); } }).observe(svg);
 
     return {
       render,
       zoom(f) { const { w, h } = size(); zoomAt([w / 2, h / 2], f); },
-      fit() { if (last) { fit(last.doc.room); rerender(); } },
+      fit() { userMoved = false; if (last) { fit(last.doc.room); rerender(); } },
       highlight(bounds) { highlight = bounds; rerender(); setTimeout(() => { highlight = null; rerender(); }, 2500); },
       fixtureScreenPoint(id) {
         const f = last && last.doc.room.fixtures.find((ff) => ff.id === id);
