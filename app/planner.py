@@ -504,9 +504,11 @@ def check_setup(rf: RoomFile, opts: PlanOptions | None = None) -> dict[str, Any]
                         "text": f"Neither the photoperiod nor one dimming setting fits: {why}. Change the layout:",
                     }
                 )
-            # 3. A new layout of the same type, and of other types (the planner, this zone only).
+            # 3. Only when no setting fixes it: a new layout of the same type, or of other types (this zone only).
             same = [f.type_id for f in mine][:1] or [t.id for t in room.fixture_types][:1]
-            for label, ids in (("same type", tuple(same)), ("any library type", tuple(fixture_library()))):
+            searches = () if any(f["kind"] in ("photoperiod", "dimming") for f in fixes) else (
+                ("same type", tuple(same)), ("any library type", tuple(fixture_library())))
+            for label, ids in searches:
                 sub = _zone_search(
                     room,
                     rf,
