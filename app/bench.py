@@ -28,7 +28,7 @@ from app.engine.reflections import image_list, mirror_coordinate
 from app.farm import vertical_farm
 from app.roomfile import parse_room_file
 from app.scene_builder import EngineScene, build_scene
-from app.settings import PROJECT_ROOT
+from app.settings import CHROMIUM_FLAGS, PROJECT_ROOT
 
 
 def clear_fixture_caches() -> None:
@@ -173,15 +173,7 @@ def browser_latency(rooms: list[str], moves: int = 25) -> list[dict]:
     while not server.started:
         time.sleep(0.05)
     out = []
-    flags = [
-        "--no-sandbox",
-        "--disable-gpu",
-        "--disable-background-networking",
-        "--disable-component-update",
-        "--disable-sync",
-        "--no-first-run",
-        "--disable-quic",
-    ]
+    flags = list(CHROMIUM_FLAGS)
     try:
         with sync_playwright() as p:
             browser = p.chromium.launch(executable_path=shutil.which("chromium"), args=flags)

@@ -506,8 +506,11 @@ def check_setup(rf: RoomFile, opts: PlanOptions | None = None) -> dict[str, Any]
                 )
             # 3. Only when no setting fixes it: a new layout of the same type, or of other types (this zone only).
             same = [f.type_id for f in mine][:1] or [t.id for t in room.fixture_types][:1]
-            searches = () if any(f["kind"] in ("photoperiod", "dimming") for f in fixes) else (
-                ("same type", tuple(same)), ("any library type", tuple(fixture_library())))
+            searches = (
+                ()
+                if any(f["kind"] in ("photoperiod", "dimming") for f in fixes)
+                else (("same type", tuple(same)), ("any library type", tuple(fixture_library())))
+            )
             for label, ids in searches:
                 sub = _zone_search(
                     room,

@@ -9,6 +9,16 @@ from platformdirs import user_data_dir
 
 LOCAL_HOSTS = frozenset({"127.0.0.1", "localhost", "::1", "[::1]"})
 PROJECT_ROOT = Path(__file__).resolve().parent.parent
+# Debian's chromium on a machine with no network and no GPU (browser tests and the benchmark).
+CHROMIUM_FLAGS = (
+    "--no-sandbox",
+    "--disable-gpu",
+    "--disable-background-networking",
+    "--disable-component-update",
+    "--disable-sync",
+    "--no-first-run",
+    "--disable-quic",
+)
 
 
 def default_data_dir() -> Path:

@@ -365,6 +365,12 @@ def create_app(settings: Settings | None = None) -> FastAPI:
     # -- planner --------------------------------------------------------
     jobs = JobBoard()
 
+    def job_or_404(job_id: str):
+        job = jobs.get(job_id)
+        if job is None:
+            raise ApiError(404, "not_found", f"no planner job '{job_id}'")
+        return job
+
     @app.get("/rooms/{room_id}/plan", response_class=HTMLResponse, include_in_schema=False)
     def plan_page(request: Request, room_id: str, format: str | None = None):
         rf = load(room_id)
@@ -391,16 +397,11 @@ def create_app(settings: Settings | None = None) -> FastAPI:
 
     @app.get("/api/plan-jobs/{job_id}", responses=ERRORS, tags=["planner"], summary="Progress and best layouts so far")
     def plan_job(job_id: str) -> dict[str, Any]:
-        job = jobs.get(job_id)
-        if job is None:
-            raise ApiError(404, "not_found", f"no planner job '{job_id}'")
-        return job.public()
+        return job_or_404(job_id).public()
 
     @app.delete("/api/plan-jobs/{job_id}", responses=ERRORS, tags=["planner"], summary="Cancel a planner job")
     def cancel_job(job_id: str) -> dict[str, Any]:
-        job = jobs.get(job_id)
-        if job is None:
-            raise ApiError(404, "not_found", f"no planner job '{job_id}'")
+        job = job_or_404(job_id)
         job.cancel.set()
         return job.public()
 

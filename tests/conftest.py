@@ -14,17 +14,10 @@ from pathlib import Path
 
 import pytest
 
+from app.settings import CHROMIUM_FLAGS
+
 ROOT = Path(__file__).resolve().parent.parent
 SAMPLES = sorted((ROOT / "sample_rooms").glob("*.json"))
-CHROMIUM_FLAGS = [
-    "--no-sandbox",
-    "--disable-gpu",
-    "--disable-background-networking",
-    "--disable-component-update",
-    "--disable-sync",
-    "--no-first-run",
-    "--disable-quic",
-]
 ARTIFACTS = ROOT / "test-artifacts"
 
 
@@ -110,7 +103,7 @@ def browser():
             pytest.fail("playwright is not installed but LEAFCAST_REQUIRE_BROWSER=1")
         pytest.skip("playwright is not installed: BROWSER TESTS SKIPPED")
     with sync_playwright() as p:
-        b = p.chromium.launch(executable_path=path, args=CHROMIUM_FLAGS, headless=True)
+        b = p.chromium.launch(executable_path=path, args=list(CHROMIUM_FLAGS), headless=True)
         yield b
         b.close()
 
