@@ -350,7 +350,8 @@ def plan(rf: RoomFile, opts: PlanOptions, progress=None, cancel: threading.Event
             if found and first_feasible_s is None and i == len(zones) - 1:
                 first_feasible_s = time.perf_counter() - t0
             if progress:
-                progress((i + frac) / len(zones), zone_id, len(found))
+                best = min(found, key=lambda r: r.key(opts.objective)).describe() if found else ""
+                progress((i + frac) / len(zones), zone_id, len(found), best)
 
         per_zone.append(_zone_search(room, rf, zone, types, opts, report, cancel))
     proposals, seen = [], set()
@@ -628,6 +629,7 @@ class Job:
     progress: float = 0.0
     zone: str = ""
     found: int = 0
+    best_so_far: str = ""
     done: bool = False
     cancelled: bool = False
     error: str | None = None
@@ -666,8 +668,8 @@ class JobBoard:
                     self.jobs.pop(old.id, None)
             self.jobs[job.id] = job
 
-        def progress(frac, zone, found):
-            job.progress, job.zone, job.found = frac, zone, found
+        def progress(frac, zone, found, best=""):
+            job.progress, job.zone, job.found, job.best_so_far = frac, zone, found, best
 
         def run():
             try:

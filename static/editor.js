@@ -33,7 +33,13 @@
   })();
 
   // ---------------------------------------------------------------- history
-  function snapshot() { return JSON.stringify(state.doc.room); }
+  function snapshot() { return JSON.stringify({ room: state.doc.room, custom_crops: state.doc.custom_crops }); }
+  function restore(text) {
+    const snap = JSON.parse(text);
+    state.doc.room = snap.room;
+    state.doc.custom_crops = snap.custom_crops;
+    for (const c of snap.custom_crops) page.crops[c.id] = c;
+  }
   function commit(mutate) {
     state.undo.push(snapshot());
     if (state.undo.length > 200) state.undo.shift();
@@ -44,14 +50,14 @@
   function undo() {
     if (!state.undo.length) return;
     state.redo.push(snapshot());
-    state.doc.room = JSON.parse(state.undo.pop());
+    restore(state.undo.pop());
     pruneSelection();
     changed();
   }
   function redo() {
     if (!state.redo.length) return;
     state.undo.push(snapshot());
-    state.doc.room = JSON.parse(state.redo.pop());
+    restore(state.redo.pop());
     pruneSelection();
     changed();
   }
@@ -499,6 +505,7 @@
         grid.append(lab, input);
       }
       box.appendChild(grid);
+      box.appendChild(bandEditor(z, idx));
       if (room().zones.length > 1) {
         const del = document.createElement("button"); del.type = "button"; del.textContent = `Remove ${z.name}`;
         del.addEventListener("click", () => { commit((r) => { r.zones.splice(idx, 1); }); renderZones(); });
@@ -507,6 +514,39 @@
       host.appendChild(box);
     });
   }
+  // The crop's band for this zone's stage; editing it makes the room's own copy of the crop (saved in the file).
+  function bandEditor(z, idx) {
+    const crop = page.crops[z.crop_id];
+    const st = crop && crop.stages[z.stage];
+    const wrap = document.createElement("div");
+    if (!st) return wrap;
+    wrap.className = "field-grid band";
+    const fields = [["dli_min", "DLI band from (mol m⁻² d⁻¹)"], ["dli_max", "DLI band to"], ["ppfd_stress_umol_m2_s", "Stress above (µmol m⁻² s⁻¹)"]];
+    for (const [key, label] of fields) {
+      const id = `z${idx}-${key}`;
+      const lab = document.createElement("label"); lab.htmlFor = id; lab.textContent = label;
+      const input = document.createElement("input"); input.id = id; input.type = "number"; input.step = "0.5"; input.min = "0"; input.value = st[key];
+      input.addEventListener("change", () => {
+        const v = parseFloat(input.value);
+        const next = Object.assign({}, st, { [key]: v });
+        if (!(v >= 0) || next.dli_max < next.dli_min || next.ppfd_stress_umol_m2_s <= 0) return fieldError(input, "the band needs 0 ≤ from ≤ to, and a stress level above 0");
+        commit(() => {
+          const own = z.crop_id.startsWith("own-") ? z.crop_id : `own-${z.crop_id}`.slice(0, 40);
+          const base = JSON.parse(JSON.stringify(page.crops[z.crop_id]));
+          const copy = Object.assign(base, { id: own, name: base.name.startsWith("Own:") ? base.name : `Own: ${base.name}`.slice(0, 120) });
+          copy.stages[z.stage] = Object.assign({}, copy.stages[z.stage], { [key]: v, source: "set by the grower" });
+          state.doc.custom_crops = state.doc.custom_crops.filter((c) => c.id !== own).concat([copy]);
+          page.crops[own] = copy;
+          room().zones[idx].crop_id = own;
+        });
+      });
+      wrap.append(lab, input);
+    }
+    const src = document.createElement("p"); src.className = "small"; src.textContent = `Source: ${st.source}`;
+    wrap.appendChild(src);
+    return wrap;
+  }
+
   $("add-zone").addEventListener("click", () => {
     commit((r) => {
       const id = nextId("zone-", new Set(r.zones.map((z) => z.id)));

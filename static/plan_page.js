@@ -42,7 +42,8 @@
     try {
       const j = await json(`/api/plan-jobs/${job}`);
       $("plan-progress").value = j.progress;
-      $("plan-message").textContent = j.done ? "" : `Searching ${j.zone}… ${j.found} layouts meet the target so far (${fmt(100 * j.progress)} %).`;
+      $("plan-message").textContent = j.done ? "" : `Searching ${j.zone}… ${j.found} layouts meet the target so far (${fmt(100 * j.progress)} %)` +
+        (j.best_so_far ? `; best so far: ${j.best_so_far}.` : ".");
       if (!j.done) { timer = setTimeout(poll, 300); return; }
       $("plan-cancel").disabled = true; $("plan-run").disabled = false;
       if (j.cancelled) { $("plan-message").textContent = "Cancelled."; return; }

@@ -150,3 +150,17 @@ def test_drawn_area_gets_its_own_figures(live_server, page):
     assert regions and regions[0]["ppfd"]["avg"] > 0
     page.click("#clear-areas")
     page.wait_for_function("() => document.getElementById('regions').innerText === ''")
+
+
+def test_editing_a_crop_band_makes_the_rooms_own_crop(live_server, page):
+    room = fresh_room(live_server, name="Band test tent")
+    before = api(live_server, f"/api/rooms/{room}")
+    page.goto(f"{live_server}/rooms/{room}")
+    wait_analysis_idle(page)
+    page.fill("#z0-dli_min", "15")
+    page.press("#z0-dli_min", "Tab")
+    wait_saved(page, before["revision"])
+    doc = api(live_server, f"/api/rooms/{room}")
+    assert doc["room"]["zones"][0]["crop_id"] == "own-pepper"
+    assert doc["custom_crops"][0]["stages"]["flowering"]["dli_min"] == 15
+    assert page.evaluate("() => window.leafcast.analysis.zones[0].target.dli_min") == 15
