@@ -10,14 +10,14 @@ import csv
 import io
 from importlib import resources
 from pathlib import Path
-from typing import Any
+from typing import Annotated, Any
 
 from fastapi import FastAPI, Query, Request
 from fastapi.exceptions import RequestValidationError
 from fastapi.responses import FileResponse, HTMLResponse, JSONResponse, Response
 from fastapi.staticfiles import StaticFiles
 from fastapi.templating import Jinja2Templates
-from pydantic import BaseModel, Field
+from pydantic import BaseModel, ConfigDict, Field
 from starlette.exceptions import HTTPException as StarletteHTTPException
 
 from app import __version__, pages
@@ -77,30 +77,38 @@ ROOM_BODY = {
 }
 
 
-class PeakIn(BaseModel):
+class ApiIn(BaseModel):
+    """Request bodies: unknown keys, NaN and infinity refused."""
+
+    model_config = ConfigDict(extra="forbid", allow_inf_nan=False)
+
+
+class PeakIn(ApiIn):
     nm: float = Field(ge=300, le=800)
     fwhm_nm: float = Field(gt=1, le=300)
     weight: float = Field(gt=0, le=1e6)
 
 
-class SpectrumIn(BaseModel):
+class SpectrumIn(ApiIn):
     csv: str | None = Field(default=None, max_length=200_000, description="wavelength [nm], relative power")
     peaks: list[PeakIn] | None = Field(
         default=None, max_length=20, description="LED peaks (a white LED: blue + phosphor)"
     )
 
 
-class MapFitIn(BaseModel):
-    readings: list[list[float]] = Field(min_length=3, max_length=101, description="PPFD rows, front to back")
+class MapFitIn(ApiIn):
+    readings: list[list[Annotated[float, Field(ge=0, le=100_000)]]] = Field(
+        min_length=3, max_length=101, description="PPFD rows, front to back [µmol m⁻² s⁻¹]"
+    )
     cell_m: float = Field(gt=0, le=1, description="Spacing of the readings [m]")
     hanging_height_m: float = Field(gt=0, le=10, description="Height of the fixture above the map [m]")
     claimed_ppf_umol_s: float | None = Field(default=None, gt=0, le=20000)
     power_w: float | None = Field(default=None, gt=0, le=10000)
     ceiling_umol_j: float | None = Field(default=None, gt=0, le=10, description="From the fixture's spectrum, if known")
-    heights_m: list[float] = Field(default_factory=list, max_length=10)
+    heights_m: list[Annotated[float, Field(gt=0, le=10)]] = Field(default_factory=list, max_length=10)
 
 
-class PlanIn(BaseModel):
+class PlanIn(ApiIn):
     type_ids: list[str] = Field(default_factory=list, max_length=20, description="Candidate fixture types")
     objective: str = Field(
         default="power", pattern="^(power|count)$", description="Least input power, or fewest fixtures"

@@ -1,5 +1,7 @@
 """Schemathesis (from PyPI) drives the app's own OpenAPI schema: no 5xx, no answer outside the schema."""
 
+import os
+
 import pytest
 import schemathesis
 from hypothesis import HealthCheck, given, settings
@@ -25,7 +27,12 @@ def test_no_server_errors_and_responses_match_schema(api):
     for op in api.get_all_operations():
         operation = op.ok()
 
-        @settings(max_examples=25, deadline=None, suppress_health_check=list(HealthCheck), database=None)
+        @settings(
+            max_examples=int(os.environ.get("LEAFCAST_SCHEMATHESIS_EXAMPLES", "40")),
+            deadline=None,
+            suppress_health_check=list(HealthCheck),
+            database=None,
+        )
         @given(case=operation.as_strategy())
         def run(case):
             response = case.call(headers={"Host": "127.0.0.1"})

@@ -100,6 +100,8 @@ def led_mix(peaks: list[dict], wavelength_nm=None) -> tuple[np.ndarray, np.ndarr
     for pk in peaks:
         sigma = pk["fwhm_nm"] / (2 * np.sqrt(2 * np.log(2)))
         g = np.exp(-0.5 * ((wl - pk["nm"]) / sigma) ** 2)
+        if g.sum() <= 0:  # a narrow peak far outside the grid would divide by zero
+            raise ValueError(f"the peak at {pk['nm']:g} nm lies outside {wl[0]:g}-{wl[-1]:g} nm")
         p += pk["weight"] * g / g.sum()
     return wl, p
 
