@@ -80,6 +80,10 @@ def plan_svg(room: Room, analysis: dict[str, Any], width_px: float = 640, fixtur
             f'stroke-width="3" stroke-dasharray="6 5"/>'
         )
     zones_a = {z["id"]: z for z in analysis["zones"]}
+    # Stacked tiers share a place on the plan: their labels (and their fixtures' ids) are set one under another.
+    label_row: dict[str, int] = {}
+    for i, z in enumerate(room.zones):
+        label_row[z.id] = sum(1 for o in room.zones[:i] if abs(o.x_m - z.x_m) < 1e-3 and abs(o.y_m - z.y_m) < 1e-3)
     for z in room.zones:
         out.append(
             f'<rect x="{sx(z.x_m):.1f}" y="{sy(z.y_m + z.length_m):.1f}" width="{z.width_m * scale:.1f}" '
@@ -88,7 +92,8 @@ def plan_svg(room: Room, analysis: dict[str, Any], width_px: float = 640, fixtur
         a = zones_a.get(z.id)
         label = f"{z.name}: {a['crop_name'] if a else z.crop_id}, canopy {format_length(z.canopy_height_m, units)}"
         out.append(
-            f'<text x="{sx(z.x_m) + 3:.1f}" y="{sy(z.y_m + z.length_m) + 11:.1f}" font-size="9" fill="#2f5a39">'
+            f'<text x="{sx(z.x_m) + 3:.1f}" y="{sy(z.y_m + z.length_m) + 11 + 10 * label_row[z.id]:.1f}" '
+            f'font-size="9" fill="#2f5a39">'
             f"{escape(label)}</text>"
         )
     for o in room.obstacles:
@@ -97,8 +102,11 @@ def plan_svg(room: Room, analysis: dict[str, Any], width_px: float = 640, fixtur
             f'height="{o.length_m * scale:.1f}" fill="none" stroke="#786e64" stroke-dasharray="3 3"/>'
         )
     types = {t.id: t for t in room.fixture_types}
+    seen_at: dict[tuple[float, float], int] = {}
     for f in room.fixtures:
         g = types[f.type_id].geometry
+        stack = seen_at.get((round(f.x_m, 3), round(f.y_m, 3)), 0)
+        seen_at[(round(f.x_m, 3), round(f.y_m, 3))] = stack + 1
         L, W = max(g.length_m * scale, 6), max((g.width_m if g.kind != "bar" else g.bar_width_m) * scale, 4)
         cx, cy = sx(f.x_m), sy(f.y_m)
         fill = "#f6d365" if f.on else "#ddd"
@@ -110,7 +118,7 @@ def plan_svg(room: Room, analysis: dict[str, Any], width_px: float = 640, fixtur
                 f'fill-opacity="0.8" stroke="#7a5d00" transform="translate({cx:.1f},{cy:.1f}) rotate({-f.rotation_deg:g})"/>'
             )
         out.append(
-            f'<text x="{cx:.1f}" y="{cy + 4:.1f}" font-size="11" font-weight="700" text-anchor="middle" '
+            f'<text x="{cx:.1f}" y="{cy + 4 + 12 * stack:.1f}" font-size="11" font-weight="700" text-anchor="middle" '
             f'class="fixture-id">{escape(f.id)}</text>'
         )
         # Dimension lines from the left and the front walls to the fixture centre.
