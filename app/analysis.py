@@ -18,7 +18,7 @@ from app.engine import metrics as mx
 from app.engine.budget import photon_budget
 from app.engine.compute import compute_scene
 from app.library import crops_for
-from app.models import CanopyZone, Crop, Room, RoomFile
+from app.models import CanopyZone, Crop, Fixture, Room, RoomFile
 from app.scene_builder import build_scene
 
 UNIFORMITY_NOTE_BELOW = 0.7  # Leafcast's own prompt, no source: no horticultural pass mark is published
@@ -52,25 +52,23 @@ def zone_photoperiod_h(room: Room, zone: CanopyZone) -> float:
     return zone.photoperiod_h if zone.photoperiod_h is not None else room.schedule.photoperiod_h
 
 
-def _zone_under(room: Room, x: float, y: float) -> CanopyZone | None:
-    for z in sorted(room.zones, key=lambda z: -z.canopy_height_m):
-        if z.x_m <= x <= z.x_m + z.width_m and z.y_m <= y <= z.y_m + z.length_m:
-            return z
-    return None
+def zone_below(room: Room, fixture: Fixture) -> CanopyZone | None:
+    """The zone a fixture hangs over: the highest canopy below it whose rectangle holds its centre."""
+    below = [
+        z
+        for z in room.zones
+        if z.canopy_height_m < fixture.hanging_height_m
+        and z.x_m <= fixture.x_m <= z.x_m + z.width_m
+        and z.y_m <= fixture.y_m <= z.y_m + z.length_m
+    ]
+    return max(below, key=lambda z: z.canopy_height_m) if below else None
 
 
 def _fixture_hours(room: Room) -> dict[str, float]:
-    """Each fixture runs for the photoperiod of the highest zone beneath it below the fixture."""
+    """Each fixture runs for the photoperiod of the zone it hangs over (the room's schedule if none)."""
     out = {}
     for f in room.fixtures:
-        below = [
-            z
-            for z in room.zones
-            if z.canopy_height_m < f.hanging_height_m
-            and z.x_m <= f.x_m <= z.x_m + z.width_m
-            and z.y_m <= f.y_m <= z.y_m + z.length_m
-        ]
-        zone = max(below, key=lambda z: z.canopy_height_m) if below else None
+        zone = zone_below(room, f)
         out[f.id] = zone_photoperiod_h(room, zone) if zone else room.schedule.photoperiod_h
     return out
 
@@ -402,7 +400,7 @@ def analyse(
     heat = {"w": total_w, "btu_h": float(elec.heat_btu_h(total_w))}
 
     for f in room.fixtures:
-        if f.on and _zone_under(room, f.x_m, f.y_m) is None:
+        if f.on and zone_below(room, f) is None:
             warnings.append(
                 _warn(
                     "fixture_off_canopy",

@@ -6,6 +6,7 @@ import datetime as dt
 from typing import Any
 
 from app import __version__
+from app.analysis import zone_below
 from app.drawings import heatmap_svg, plan_svg
 from app.library import crops_for, fixture_library
 from app.models import WALL_FINISHES, RoomFile
@@ -36,14 +37,7 @@ def sheet(room_id: str, room_file: RoomFile, analysis: dict[str, Any], paper: st
     fixtures = []
     types = {t.id: t for t in room.fixture_types}
     for f in room.fixtures:
-        under = [
-            z
-            for z in room.zones
-            if z.x_m <= f.x_m <= z.x_m + z.width_m
-            and z.y_m <= f.y_m <= z.y_m + z.length_m
-            and z.canopy_height_m < f.hanging_height_m
-        ]
-        top = max(under, key=lambda z: z.canopy_height_m) if under else None
+        top = zone_below(room, f)
         fixtures.append(
             {
                 "id": f.id,
