@@ -668,6 +668,44 @@
     renderWarnings(a);
   }
 
+  // While a fixture is dragged, plotly's full repaint (25-45 ms in software-rendered Chromium) would trail
+  // the pointer: the new values are painted on a canvas laid exactly over plotly's heatmap, in its colour
+  // scale, and plotly redraws everything (contours included) as soon as the fixture is dropped.
+  const VIRIDIS = [[68, 1, 84], [71, 44, 122], [59, 81, 139], [44, 113, 142], [33, 144, 141], [39, 173, 129],
+    [92, 200, 99], [170, 220, 50], [253, 231, 37]];
+  function viridis(t) {
+    const x = Math.min(Math.max(t, 0), 1) * (VIRIDIS.length - 1), i = Math.min(Math.floor(x), VIRIDIS.length - 2), f = x - i;
+    return VIRIDIS[i].map((c, k) => Math.round(c * (1 - f) + VIRIDIS[i + 1][k] * f));
+  }
+  function edges(v) {
+    const mid = v.slice(1).map((x, i) => (x + v[i]) / 2);
+    return [v[0] - (mid[0] - v[0]), ...mid, v[v.length - 1] + (v[v.length - 1] - mid[mid.length - 1])];
+  }
+  function paintPreview(xs, ys, values) {
+    const gd = $("map"), fl = gd._fullLayout, tr = gd._fullData && gd._fullData[0];
+    if (!fl || !tr || xs.length < 2 || ys.length < 2) return false;
+    let cv = $("map-preview");
+    if (!cv) { cv = document.createElement("canvas"); cv.id = "map-preview"; cv.className = "map-preview"; gd.appendChild(cv); }
+    const xa = fl.xaxis, ya = fl.yaxis;
+    Object.assign(cv.style, { left: "0px", top: "0px", width: `${fl.width}px`, height: `${fl.height}px`, display: "block" });
+    cv.width = fl.width; cv.height = fl.height;
+    const ctx = cv.getContext("2d");
+    ctx.beginPath();
+    ctx.rect(xa._offset, ya._offset, xa._length, ya._length);  // the axes' own area, as plotly clips it
+    ctx.clip();
+    const xe = edges(xs).map((v) => xa._offset + xa.l2p(v)), ye = edges(ys).map((v) => ya._offset + ya.l2p(v));
+    const lo = tr.zmin, span = (tr.zmax - tr.zmin) || 1;
+    for (let j = 0; j < ys.length; j++) {
+      for (let i = 0; i < xs.length; i++) {
+        const [r, g, b] = viridis((values[j][i] - lo) / span);
+        ctx.fillStyle = `rgb(${r},${g},${b})`;
+        ctx.fillRect(xe[i], ye[j + 1], xe[i + 1] - xe[i] + 0.6, ye[j] - ye[j + 1] + 0.6);
+      }
+    }
+    return true;
+  }
+  function hidePreview() { const cv = $("map-preview"); if (cv) cv.style.display = "none"; }
+
   function drawMap() {
     const a = state.analysis;
     const z = a.zones.find((zz) => zz.id === state.mapZone);
@@ -675,6 +713,8 @@
     const u = state.units, q = state.quantity;
     const xs = z.grid.x_m.map((v) => Units.axisValue(v, u)), ys = z.grid.y_m.map((v) => Units.axisValue(v, u));
     const values = q === "ppfd" ? z.grid.ppfd : z.grid.dli;
+    if (dragging && paintPreview(xs, ys, values)) return;
+    hidePreview();
     const title = q === "ppfd" ? "PPFD<br>µmol m⁻² s⁻¹" : "DLI<br>mol m⁻² d⁻¹";
     const low = q === "ppfd" ? z.target.ppfd_min : z.target.dli_min;
     const high = q === "ppfd" ? z.target.ppfd_stress : z.target.ppfd_stress * z.photoperiod_h * 0.0036;
@@ -687,10 +727,7 @@
       type: "heatmap", x: xs, y: ys, z: values, colorscale: "Viridis", zsmooth: false,
       colorbar: { title: { text: title, side: "top" }, thickness: 14 }, showlegend: false,
       hovertemplate: `%{x:.2f} ${Units.axisUnit(u)}, %{y:.2f} ${Units.axisUnit(u)}<br>%{z:.0f}<extra></extra>`,
-    }];
-    // Contours are costly to trace: while a fixture is being dragged the heatmap alone follows the
-    // pointer, and the contour lines return as soon as it is dropped.
-    if (!dragging) traces.push(contour(low, "#ffffff", "dark"), contour(high, "#ff3b30", "hot"));
+    }, contour(low, "#ffffff", "dark"), contour(high, "#ff3b30", "hot")];
     const shapes = room().fixtures.filter((f) => f.on).map((f) => {
       const [hx, hy] = halfExtent(f);
       return { type: "rect", x0: Units.axisValue(f.x_m - hx, u), x1: Units.axisValue(f.x_m + hx, u), y0: Units.axisValue(f.y_m - hy, u),

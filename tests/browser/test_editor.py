@@ -164,3 +164,20 @@ def test_editing_a_crop_band_makes_the_rooms_own_crop(live_server, page):
     assert doc["room"]["zones"][0]["crop_id"] == "own-pepper"
     assert doc["custom_crops"][0]["stages"]["flowering"]["dli_min"] == 15
     assert page.evaluate("() => window.leafcast.analysis.zones[0].target.dli_min") == 15
+
+
+def test_drag_paints_a_preview_that_plotly_replaces_on_drop(live_server, page):
+    room = fresh_room(live_server, name="Preview test tent")
+    page.goto(f"{live_server}/rooms/{room}")
+    wait_analysis_idle(page)
+    box = page.locator('[data-fixture-id="F1"]').bounding_box()
+    x, y = box["x"] + box["width"] / 2, box["y"] + box["height"] / 2
+    page.mouse.move(x, y)
+    page.mouse.down()
+    page.mouse.move(x + 20, y, steps=4)
+    page.wait_for_function("() => { const c = document.getElementById('map-preview'); return c && c.style.display === 'block'; }")
+    # The preview lies over plotly's own axes area, in plotly's colour range.
+    assert page.evaluate("() => { const c = document.getElementById('map-preview'), gd = document.getElementById('map');"
+                         " return c.width === gd._fullLayout.width && c.height === gd._fullLayout.height; }")
+    page.mouse.up()
+    page.wait_for_function("() => document.getElementById('map-preview').style.display === 'none'")
