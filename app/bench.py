@@ -60,8 +60,7 @@ def _dense_nodes(e, n=32):
     """Brute force: about 32 × 32 Gauss-Legendre nodes over the emitter, whatever its distance."""
     if e.shape == "point":
         return np.array([[e.x_m, e.y_m, e.z_m]]), np.array([e.flux_umol_s])
-    fine = replace(e, length_m=e.length_m, width_m=e.width_m)
-    u, v, w = local_nodes(fine, e.largest_dimension_m / n / 0.5 / 2)  # segments ≈ n per dimension
+    u, v, w = local_nodes(e, e.largest_dimension_m / n / 0.5 / 2)  # segments ≈ n per dimension
     a = np.radians(e.rotation_deg)
     xyz = np.column_stack(
         [e.x_m + np.cos(a) * u - np.sin(a) * v, e.y_m + np.sin(a) * u + np.cos(a) * v, np.full(u.size, e.z_m)]

@@ -237,15 +237,9 @@ def consistency_problems(room_file: RoomFile) -> list[Problem]:
     return p
 
 
-def dump_room_file(room_file: RoomFile, *, embed_only_used: bool = False) -> dict[str, Any]:
-    """The room file as a JSON-ready dict: fixture types and custom crops trimmed to those used."""
-    doc = room_file.model_dump(mode="json")
-    if embed_only_used:
-        used_types = {f.type_id for f in room_file.room.fixtures}
-        doc["room"]["fixture_types"] = [t for t in doc["room"]["fixture_types"] if t["id"] in used_types]
-        used_crops = {z.crop_id for z in room_file.room.zones}
-        doc["custom_crops"] = [c for c in doc["custom_crops"] if c["id"] in used_crops]
-    return doc
+def dump_room_file(room_file: RoomFile) -> dict[str, Any]:
+    """The room file as a JSON-ready dict, with every fixture type and custom crop the room carries."""
+    return room_file.model_dump(mode="json")
 
 
 def to_json_bytes(doc: dict[str, Any]) -> bytes:

@@ -60,8 +60,8 @@ def _directions(emitter: Emitter, n: int, rng: np.random.Generator) -> np.ndarra
         theta = np.linspace(0, np.pi / 2, 2001)
         prof = np.interp(theta, d.polar_rad, d.table_per_sr.mean(axis=0), right=0.0) * np.sin(theta)
         cdf = np.concatenate([[0], np.cumsum(0.5 * (prof[1:] + prof[:-1]) * np.diff(theta))])
+        # The azimuthal structure of a table is not followed in the budget: φ stays uniform.
         cos_t = np.cos(np.interp(xi * cdf[-1], cdf, theta))
-        phi = phi  # azimuthal structure of a table is not followed in the budget
     sin_t = np.sqrt(np.maximum(1.0 - cos_t**2, 0.0))
     a = phi + np.radians(emitter.rotation_deg)
     return np.column_stack([sin_t * np.cos(a), sin_t * np.sin(a), -cos_t])

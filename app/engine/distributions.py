@@ -36,12 +36,6 @@ class Distribution:
     azimuth_rad: np.ndarray | None = field(default=None, compare=False, hash=False, repr=False)
     table_per_sr: np.ndarray | None = field(default=None, compare=False, hash=False, repr=False)
 
-    @property
-    def peak_per_sr(self) -> float:
-        if self.kind == "tabulated":
-            return float(self.table_per_sr.max())
-        return (self.exponent + 1.0) / (2.0 * np.pi)
-
 
 def cosine_exponent_from_beam_angle(beam_angle_deg):
     """n of a cosⁿ beam whose full angle at half intensity is ``beam_angle_deg``.
@@ -145,11 +139,3 @@ def intensity_per_flux(dist: Distribution, cos_theta, phi=0.0):
     theta = np.arccos(np.clip(c, -1.0, 1.0))
     return _interp_table(dist.polar_rad, dist.azimuth_rad, dist.table_per_sr, theta, phi).astype(c.dtype, copy=False)
 
-
-def flux_within_polar(dist: Distribution, theta_max_rad: float) -> float:
-    """Share of the flux emitted within θ ≤ θ_max (cosⁿ: 1 − cos^{n+1} θ_max)."""
-    if dist.kind == "cosine_power":
-        return float(1.0 - np.cos(theta_max_rad) ** (dist.exponent + 1.0))
-    polar = dist.polar_rad
-    keep = np.where(polar <= theta_max_rad, dist.table_per_sr, 0.0)
-    return zonal_flux(polar, dist.azimuth_rad, keep)
