@@ -31,13 +31,12 @@ from typing import Any
 import numpy as np
 
 from app.analysis import analyse, zone_photoperiod_h
-from app.engine.compute import compute_scene
-from app.engine.metrics import area_weighted_stats, ppfd_for_dli
-from app.engine.scene import Grid
+from app.engine.compute import compute_scene, covering_height_m
+from app.engine.metrics import area_weighted_stats, ppfd_for_dli, value_at_area_share
 from app.library import crops_for, fixture_library
 from app.models import CanopyZone, Fixture, FixtureType, Room, RoomFile
 from app.roomfile import consistency_problems, fixture_half_extent_m
-from app.scene_builder import build_scene, emitter_for
+from app.scene_builder import build_scene, emitter_for, room_boxes, zone_grid
 
 DARK_ALLOWANCE = 0.10  # share of a zone allowed below the band (Leafcast default, no source)
 MIN_DIMMING = 0.10
@@ -103,17 +102,9 @@ class ZoneLayout:
 
 
 def _max_height_m(room: Room, zone: CanopyZone) -> float:
-    covers = [
-        o.z_m
-        for o in room.obstacles
-        if o.z_m > zone.canopy_height_m
-        and o.x_m <= zone.x_m + 1e-3
-        and o.y_m <= zone.y_m + 1e-3
-        and o.x_m + o.width_m >= zone.x_m + zone.width_m - 1e-3
-        and o.y_m + o.length_m >= zone.y_m + zone.length_m - 1e-3
-    ]
-    top = min(covers, default=room.height_m)
-    return top - 0.01
+    """Highest a fixture over the zone can hang: just under the shelf above it, or the ceiling."""
+    cover = covering_height_m(zone_grid(zone, room.grid_spacing_m), room_boxes(room))
+    return min(cover, room.height_m) - 0.01
 
 
 def _positions(zone: CanopyZone, rows: int, cols: int, edge: bool, stagger: bool, hx: float, hy: float):
@@ -187,7 +178,7 @@ def _zone_search(
     # the proposals are checked with it, by the full analysis, before they are offered.
     enclosure = replace(scene.enclosure, finish="absorbing") if scene.enclosure.finish == "diffuse" else scene.enclosure
     spacing = max(room.grid_spacing_m, max(zone.width_m, zone.length_m) / PLANNER_POINTS_PER_SIDE)
-    grid = Grid(zone.id, zone.x_m, zone.y_m, zone.width_m, zone.length_m, zone.canopy_height_m, spacing)
+    grid = zone_grid(zone, spacing)
     area = grid.cell_area_m2
     hmin = zone.canopy_height_m + opts.min_clearance_m
     hmax = _max_height_m(room, zone)
@@ -226,11 +217,7 @@ def _zone_search(
                 continue
             emitters = tuple(emitter_for(f"p{k}", t, x, y, h, rot, 100.0) for k, (x, y) in enumerate(pos))
             ppfd = compute_scene(emitters, (grid,), enclosure, scene.boxes)[0].ppfd.astype(float)
-            flat = ppfd.ravel()
-            w = area.ravel()
-            order_v = np.argsort(flat)
-            cum = np.cumsum(w[order_v]) / w.sum()
-            p_dark = float(flat[order_v][np.searchsorted(cum, DARK_ALLOWANCE)])  # PPFD at the allowed dark share
+            p_dark = value_at_area_share(ppfd, area, DARK_ALLOWANCE)
             stats = area_weighted_stats(ppfd, area)
             d_low = max(MIN_DIMMING, need_ppfd / p_dark if p_dark > 0 else math.inf)
             d_high = min(1.0, stage.ppfd_stress_umol_m2_s / stats["max"], band_max_ppfd / stats["avg"])
@@ -429,8 +416,10 @@ def check_setup(rf: RoomFile, opts: PlanOptions | None = None) -> dict[str, Any]
         ok = a["dark"]["share"] <= DARK_ALLOWANCE + 1e-9 and a["hot"]["share"] == 0 and a["dli"]["avg"] <= stage.dli_max
         fixes: list[dict[str, Any]] = []
         if not ok:
-            ppfd = np.asarray(a["grid"]["ppfd"], float)
-            p_dark = float(np.quantile(ppfd, DARK_ALLOWANCE))
+            # The same area-weighted rule as the search and as the dark share the analysis reports.
+            p_dark = value_at_area_share(
+                a["grid"]["ppfd"], zone_grid(z, room.grid_spacing_m).cell_area_m2, DARK_ALLOWANCE
+            )
             hours = a["photoperiod_h"]
             mine = [
                 f
@@ -579,7 +568,7 @@ def curves(rf: RoomFile, zone_id: str, fixture_ids: tuple[str, ...] = (), steps:
         raise ValueError(f"no fixture hangs over zone '{zone_id}'")
     scene = build_scene(room)
     spacing = max(room.grid_spacing_m, max(z.width_m, z.length_m) / 60)
-    grid = Grid(z.id, z.x_m, z.y_m, z.width_m, z.length_m, z.canopy_height_m, spacing)
+    grid = zone_grid(z, spacing)
     types = room_types(room)
     others = tuple(e for e in scene.emitters if e.id not in ids)
     lowest = min(f.hanging_height_m for f in chosen)

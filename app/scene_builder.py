@@ -8,7 +8,7 @@ from dataclasses import dataclass
 
 from app.engine import distributions as dist
 from app.engine.scene import Box, Emitter, Enclosure, Grid
-from app.models import Beam, FixtureType, Room
+from app.models import Beam, CanopyZone, FixtureType, Room
 
 
 @dataclass(frozen=True)
@@ -57,6 +57,16 @@ def emitter_for(
     )
 
 
+def zone_grid(zone: CanopyZone, spacing_m: float) -> Grid:
+    return Grid(zone.id, zone.x_m, zone.y_m, zone.width_m, zone.length_m, zone.canopy_height_m, spacing_m)
+
+
+def room_boxes(room: Room) -> tuple[Box, ...]:
+    return tuple(
+        Box(o.x_m, o.y_m, o.z_m, o.x_m + o.width_m, o.y_m + o.length_m, o.z_m + o.height_m) for o in room.obstacles
+    )
+
+
 def build_scene(room: Room) -> EngineScene:
     types = {t.id: t for t in room.fixture_types}
     emitters = tuple(
@@ -64,14 +74,9 @@ def build_scene(room: Room) -> EngineScene:
         for f in room.fixtures
         if f.on
     )
-    grids = tuple(
-        Grid(z.id, z.x_m, z.y_m, z.width_m, z.length_m, z.canopy_height_m, room.grid_spacing_m) for z in room.zones
-    )
+    grids = tuple(zone_grid(z, room.grid_spacing_m) for z in room.zones)
     wf = room.wall_finish
     enclosure = Enclosure(
         room.width_m, room.length_m, room.height_m, wf.kind, wf.reflectance, frozenset(room.open_sides)
     )
-    boxes = tuple(
-        Box(o.x_m, o.y_m, o.z_m, o.x_m + o.width_m, o.y_m + o.length_m, o.z_m + o.height_m) for o in room.obstacles
-    )
-    return EngineScene(emitters, grids, enclosure, boxes)
+    return EngineScene(emitters, grids, enclosure, room_boxes(room))

@@ -138,4 +138,3 @@ def intensity_per_flux(dist: Distribution, cos_theta, phi=0.0):
         return val * ((n + 1.0) / (2.0 * np.pi))
     theta = np.arccos(np.clip(c, -1.0, 1.0))
     return _interp_table(dist.polar_rad, dist.azimuth_rad, dist.table_per_sr, theta, phi).astype(c.dtype, copy=False)
-

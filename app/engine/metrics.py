@@ -61,6 +61,15 @@ def share_of_area(mask, cell_area_m2) -> tuple[float, float]:
     return area, area / float(a.sum()) if a.sum() > 0 else 0.0
 
 
+def value_at_area_share(values, cell_area_m2, share: float) -> float:
+    """The value below which ``share`` of the area lies (an area-weighted quantile, lower side)."""
+    v = np.asarray(values, dtype=float).ravel()
+    a = np.asarray(cell_area_m2, dtype=float).ravel()
+    order = np.argsort(v)
+    cum = np.cumsum(a[order]) / a.sum()
+    return float(v[order][min(np.searchsorted(cum, share), v.size - 1)])
+
+
 def mask_outline(mask, x_m, y_m) -> list[list[float]]:
     """Boundary of the cells where ``mask`` is true, as segments [x0, y0, x1, y1] in metres.
 

@@ -175,9 +175,13 @@ def test_drag_paints_a_preview_that_plotly_replaces_on_drop(live_server, page):
     page.mouse.move(x, y)
     page.mouse.down()
     page.mouse.move(x + 20, y, steps=4)
-    page.wait_for_function("() => { const c = document.getElementById('map-preview'); return c && c.style.display === 'block'; }")
+    page.wait_for_function(
+        "() => { const c = document.getElementById('map-preview'); return c && c.style.display === 'block'; }"
+    )
     # The preview lies over plotly's own axes area, in plotly's colour range.
-    assert page.evaluate("() => { const c = document.getElementById('map-preview'), gd = document.getElementById('map');"
-                         " return Math.abs(c.width - gd._fullLayout.width) < 1 && Math.abs(c.height - gd._fullLayout.height) < 1; }")
+    assert page.evaluate(
+        "() => { const c = document.getElementById('map-preview'), gd = document.getElementById('map');"
+        " return Math.abs(c.width - gd._fullLayout.width) < 1 && Math.abs(c.height - gd._fullLayout.height) < 1; }"
+    )
     page.mouse.up()
     page.wait_for_function("() => document.getElementById('map-preview').style.display === 'none'")

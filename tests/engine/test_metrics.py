@@ -53,3 +53,11 @@ def test_outline_of_a_single_cell_is_a_square():
 def test_outline_merges_runs():
     m = np.ones((2, 4), bool)
     assert len(mx.mask_outline(m, [0, 1, 2, 3], [0, 1])) == 4
+
+
+def test_value_at_area_share_weights_by_area():
+    v = np.array([[10.0, 20.0, 30.0, 40.0]])
+    assert mx.value_at_area_share(v, np.ones_like(v), 0.10) == 10.0
+    assert mx.value_at_area_share(v, np.ones_like(v), 0.50) == 20.0  # half the area lies at or below 20
+    # A small cell barely counts: 10 % of the area lies within the large cell of value 20.
+    assert mx.value_at_area_share(v, np.array([[0.01, 1.0, 1.0, 1.0]]), 0.10) == 20.0
