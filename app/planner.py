@@ -409,6 +409,7 @@ def check_setup(rf: RoomFile, opts: PlanOptions | None = None) -> dict[str, Any]
     base = analyse(rf, include_grids=True)
     room = rf.room
     crops = crops_for(rf)
+    types = room_types(room)
     out = []
     for z, a in zip(room.zones, base["zones"], strict=True):
         crop = crops[z.crop_id]
@@ -469,9 +470,7 @@ def check_setup(rf: RoomFile, opts: PlanOptions | None = None) -> dict[str, Any]
                             "scale": scale,
                             "text": f"Set the dimming of {', '.join(f.id for f in mine)} to {scale:.0%} of what it "
                             f"is now ({', '.join(f'{f.dimming_pct * scale:.0f} %' for f in mine[:4])}).",
-                            "power_change_w": sum(
-                                room_types(room)[f.type_id].power_w * f.dimming_pct / 100 for f in mine
-                            )
+                            "power_change_w": sum(types[f.type_id].power_w * f.dimming_pct / 100 for f in mine)
                             * (scale - 1),
                         }
                     )
@@ -506,7 +505,7 @@ def check_setup(rf: RoomFile, opts: PlanOptions | None = None) -> dict[str, Any]
                     room,
                     rf,
                     z,
-                    [room_types(room).get(i) or fixture_library()[i] for i in ids],
+                    [types.get(i) or fixture_library()[i] for i in ids],
                     PlanOptions(
                         type_ids=ids,
                         objective="count",
