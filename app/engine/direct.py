@@ -17,8 +17,9 @@ from functools import lru_cache
 import numpy as np
 
 from app.engine.distributions import Distribution, intensity_per_flux
-from app.engine.emitters import world_nodes
+from app.engine.emitters import SHADOW_SUBDIVISION, world_nodes
 from app.engine.scene import Box, Emitter, Grid
+from app.engine.shadows import boxes_blocked, shadow_candidates
 
 CHUNK_ELEMENTS = 1 << 20  # node × point pairs per numpy pass: bounds temporary memory
 CULL_RELATIVE = 1e-5
@@ -27,38 +28,14 @@ For a Lambertian emitter this drops about 0.3 % of its flux, all of it more than
 18 hanging heights away (the share of flux beyond θ is cos^(n+1) θ)."""
 
 
-def blocked(q: np.ndarray, p: np.ndarray, boxes: tuple[Box, ...]) -> np.ndarray:
-    """True where the segment q→p passes through any box (slab method).
+def blocked(q: np.ndarray, p: np.ndarray, boxes: tuple[Box, ...], fold_m=(None, None)) -> np.ndarray:
+    """True where the segment q→p passes through any box (or, with ``fold_m``, a mirror copy of one).
 
     q : (N, 3) sources, p : (M, 3) receiver points; returns (N, M) booleans.
     Touching a box face does not block, so a canopy lying on a shelf top is lit.
+    The test itself is in app/engine/shadows.py.
     """
-    out = np.zeros((q.shape[0], p.shape[0]), dtype=bool)
-    if not boxes:
-        return out
-    qlo, qhi = q.min(axis=0), q.max(axis=0)
-    for b in boxes:
-        lo = np.array([b.x0_m, b.y0_m, b.z0_m])
-        hi = np.array([b.x1_m, b.y1_m, b.z1_m])
-        # Only points whose segments' bounding box meets the box can be blocked by it.
-        near = np.all((np.minimum(p, qlo) < hi) & (np.maximum(p, qhi) > lo), axis=1)
-        idx = np.nonzero(near)[0]
-        if idx.size == 0:
-            continue
-        d = p[None, idx, :] - q[:, None, :]
-        with np.errstate(divide="ignore", invalid="ignore"):
-            inv = 1.0 / d
-            t1 = (lo - q[:, None, :]) * inv
-            t2 = (hi - q[:, None, :]) * inv
-        # Parallel to a slab: inside it, the slab never limits t; outside, it is never entered.
-        par = d == 0
-        inside = (q[:, None, :] > lo) & (q[:, None, :] < hi)
-        t1 = np.where(par, np.where(inside, -np.inf, np.inf), t1)
-        t2 = np.where(par, np.inf, t2)
-        tmin = np.max(np.minimum(t1, t2), axis=2)
-        tmax = np.min(np.maximum(t1, t2), axis=2)
-        out[:, idx] |= (tmax > tmin + 1e-9) & (tmax > 1e-9) & (tmin < 1 - 1e-9)
-    return out
+    return boxes_blocked(q, p, boxes, fold_m)
 
 
 def irradiance_from_nodes(
@@ -71,12 +48,16 @@ def irradiance_from_nodes(
     boxes: tuple[Box, ...] = (),
     mirror=(1.0, 1.0),
     dtype=np.float64,
+    fold_m=(None, None),
+    blocked_only: bool = False,
 ) -> np.ndarray:
     """Irradiance [µmol m⁻² s⁻¹] at ``points`` (M, 3) from ``nodes`` (N, 3) of flux ``node_flux`` [µmol/s].
 
     normal : receiver normal, one for all points (3,) or one per point (M, 3).
     mirror : (±1, ±1) when the nodes are a mirror image, so that azimuths of a
         tabulated distribution are read in the real emitter's frame.
+    fold_m : (W, L) along which mirror walls fold the segments (image nodes), None where they do not.
+    blocked_only : sum only the contributions that ``boxes`` block (the light a shadow takes away).
     """
     points = np.asarray(points, dtype=dtype)
     nodes = np.asarray(nodes, dtype=dtype)
@@ -103,7 +84,7 @@ def irradiance_from_nodes(
             else:
                 e = dzp ** (n + 1.0) * r2 ** (-(n + 3.0) / 2.0)
             if boxes:
-                e = np.where(blocked(nodes, p, boxes), 0.0, e)
+                e = _shade(e, nodes, p, boxes, fold_m, blocked_only)
             out[a : a + step] = (flux * ((n + 1.0) / (2.0 * np.pi))) @ e
             continue
         r = np.sqrt(r2)
@@ -121,9 +102,14 @@ def irradiance_from_nodes(
             cos_r = np.maximum((-dx * nx - dy * ny + dz * nz) / r, 0.0)
         e = ipf * cos_r / r2
         if boxes:
-            e = np.where(blocked(nodes, p, boxes), 0.0, e)
+            e = _shade(e, nodes, p, boxes, fold_m, blocked_only)
         out[a : a + step] = flux @ e
     return out
+
+
+def _shade(e, nodes, p, boxes, fold_m, blocked_only: bool):
+    hit = blocked(nodes, p, boxes, fold_m)
+    return np.where(hit, e, 0.0) if blocked_only else np.where(hit, 0.0, e)
 
 
 def cull_radius_m(dist: Distribution, drop_m: float, relative: float = CULL_RELATIVE) -> float:
@@ -227,16 +213,49 @@ def direct_patch(
         return None
     near = relevant_boxes(emitter, grid, boxes, reach)
     s = grid.spacing_m
+    u = (emitter.x_m - xs[0]) / s
+    v = (emitter.y_m - ys[0]) / s
+    ic, jc = int(np.floor(u)), int(np.floor(v))
+    fx, fy = round(u - ic, 6), round(v - jc, 6)
+    local = replace(emitter, id="", x_m=fx * s, y_m=fy * s, z_m=round(dz, 9))
+    st = _stamp(local, round(s, 12), i0 - ic, i1 - ic, j0 - jc, j1 - jc, np.dtype(dtype).name)
     if not near:
-        u = (emitter.x_m - xs[0]) / s
-        v = (emitter.y_m - ys[0]) / s
-        ic, jc = int(np.floor(u)), int(np.floor(v))
-        fx, fy = round(u - ic, 6), round(v - jc, 6)
-        local = replace(emitter, id="", x_m=fx * s, y_m=fy * s, z_m=round(dz, 9))
-        st = _stamp(local, round(s, 12), i0 - ic, i1 - ic, j0 - jc, j1 - jc, np.dtype(dtype).name)
         return Patch(i0, j0, st)
+    # Open-air footprint everywhere, recomputed with shadow-resolving nodes only where a box may shade.
     gx, gy = np.meshgrid(xs[i0:i1], ys[j0:j1])
     pts = np.column_stack([gx.ravel(), gy.ravel(), np.full(gx.size, grid.z_m)])
-    nodes, flux = world_nodes(emitter, nearest_distance_m(emitter, grid), shadowed=True)
-    e = irradiance_from_nodes(pts, nodes, flux, emitter.distribution, emitter.rotation_deg, boxes=near, dtype=dtype)
-    return Patch(i0, j0, e.reshape(gx.shape))
+    values = np.array(st, dtype=dtype).ravel()
+    relight_shadowed(values, pts, emitter, nearest_distance_m(emitter, grid), near, emitter.flux_umol_s)
+    return Patch(i0, j0, values.reshape(gx.shape))
+
+
+def relight_shadowed(
+    values: np.ndarray,
+    points: np.ndarray,
+    emitter: Emitter,
+    nearest_m: float,
+    boxes: tuple[Box, ...],
+    flux_umol_s: float,
+    cell=(0, 0),
+    room_m=(None, None),
+    mirror=(1.0, 1.0),
+    subdivision: float = SHADOW_SUBDIVISION,
+) -> int:
+    """Overwrite ``values`` (M,) at the points some box may shade with the shadowed irradiance.
+
+    The emitter may be a mirror image in lattice ``cell`` of a room ``room_m`` = (W, L). Candidates
+    come from a conservative test per point (app/engine/shadows.py) and the shadow's edge alone is
+    integrated finely (app/engine/penumbra.py), so the cost follows the shade, not the grid.
+    Returns the number of points recomputed.
+    """
+    from app.engine.penumbra import _to_world, shadowed_irradiance
+
+    hl, hw = 0.5 * emitter.length_m, 0.5 * emitter.width_m
+    cloud = _to_world(np.array([[-hl, -hw], [-hl, hw], [hl, -hw], [hl, hw]]), emitter, cell, room_m)
+    fold = room_m if any(cell) else (None, None)
+    idx = np.nonzero(shadow_candidates(cloud, points, boxes, fold))[0]
+    if idx.size:
+        values[idx] = shadowed_irradiance(
+            points[idx], emitter, nearest_m, boxes, flux_umol_s, cell, room_m, mirror, subdivision
+        )
+    return int(idx.size)

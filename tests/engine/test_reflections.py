@@ -136,3 +136,39 @@ def test_map_integral_agrees_with_the_ray_tally(finish, rho, tol):
     b = photon_budget(fixtures, (g,), enc)
     mapped = float((zl.ppfd * g.cell_area_m2).sum())
     assert_allclose(mapped, b.zones_umol_s["bench"], rtol=tol)
+
+
+def _mc_map(fixtures, W, L, rho_walls, canopy, boxes, n, seed):
+    rng = np.random.default_rng(seed)
+    tally = 0.0
+    for f in fixtures:
+        o = sample_emitter(
+            rng, n, f.x_m, f.y_m, f.z_m, f.shape, f.length_m, f.width_m, f.bar_count, f.bar_width_m, f.rotation_deg
+        )
+        d = sample_cos_power(rng, n, f.distribution.exponent)
+        tally = tally + trace(o, d, f.flux_umol_s / n, W, L, rho_walls, canopy, boxes=boxes)
+    return tally
+
+
+@pytest.mark.slow
+@pytest.mark.parametrize("fan", [(0.03, 0.03, 0.75, 0.18, 0.18, 0.9), (0.5, 0.5, 0.7, 0.65, 0.65, 0.85)])
+def test_mirror_tent_with_a_fan_matches_monte_carlo_reference(fan):
+    # A 15 cm box (a clip fan) in a reflective-film tent: direct and mirrored light shadowed by the box
+    # and its mirror copies, against photons traced with real bounces (tests/engine/reference_tracer.py).
+    clear_caches()
+    W, rho = 1.2192, 0.95
+    enc = Enclosure(W, W, 2.0, "specular", rho)
+    fixtures = (
+        Emitter("a", 0.3148, 0.6096, 1.05, 420.0, lambertian(), "bar_array", 0.6, 0.55, 4, 0.03, rotation_deg=90),
+        Emitter("b", 0.9044, 0.6096, 1.05, 420.0, lambertian(), "bar_array", 0.6, 0.55, 4, 0.03, rotation_deg=90),
+    )
+    g = Grid("tent", 0, 0, W, W, 0.6, 0.0254)
+    zl = compute_scene(fixtures, (g,), enc, (Box(*fan),))[0]
+    nx = ny = 12
+    tally = _mc_map(
+        fixtures, W, W, dict.fromkeys(("left", "right", "front", "back"), rho), (0, 0, W, W, 0.6, nx, ny), (fan,), 1_500_000, 5
+    )
+    ours = binned(zl.ppfd, g, nx, ny)
+    rms = np.sqrt(np.mean((ours - tally) ** 2)) / tally.mean()
+    assert_allclose(ours.sum(), tally.sum(), rtol=0.01)
+    assert rms < 0.03, f"RMS difference {rms:.3%}"
