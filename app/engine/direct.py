@@ -229,6 +229,16 @@ def direct_patch(
     return Patch(i0, j0, values.reshape(gx.shape))
 
 
+def _mirror(nodes: np.ndarray, cell, room_m) -> np.ndarray:
+    """Nodes (N, 3) mirrored into lattice cell (i, j) of a room (W, L)."""
+    out = nodes.copy()
+    for k in range(2):
+        i, size = cell[k], room_m[k]
+        if i:
+            out[:, k] = i * size + (nodes[:, k] if i % 2 == 0 else size - nodes[:, k])
+    return out
+
+
 def relight_shadowed(
     values: np.ndarray,
     points: np.ndarray,
@@ -254,7 +264,21 @@ def relight_shadowed(
     cloud = _to_world(np.array([[-hl, -hw], [-hl, hw], [hl, -hw], [hl, hw]]), emitter, cell, room_m)
     fold = room_m if any(cell) else (None, None)
     idx = np.nonzero(shadow_candidates(cloud, points, boxes, fold))[0]
-    if idx.size:
+    if idx.size and subdivision <= 1.0:
+        # No finer penumbra nodes wanted: the open-air nodes, each tested exactly.
+        nodes, flux = world_nodes(emitter, nearest_m)
+        nodes = _mirror(nodes, cell, room_m)
+        values[idx] = irradiance_from_nodes(
+            points[idx],
+            nodes,
+            flux * (flux_umol_s / emitter.flux_umol_s) if emitter.flux_umol_s > 0 else flux * 0.0,
+            emitter.distribution,
+            emitter.rotation_deg,
+            boxes=boxes,
+            mirror=mirror,
+            fold_m=fold,
+        )
+    elif idx.size:
         values[idx] = shadowed_irradiance(
             points[idx], emitter, nearest_m, boxes, flux_umol_s, cell, room_m, mirror, subdivision
         )

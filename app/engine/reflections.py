@@ -34,6 +34,10 @@ NEAR_ORDER = 1  # images this close are computed on the fine grid with full emit
 IMAGE_SAMPLES_PER_DISTANCE = 8
 COARSE_POINTS = 9  # far images vary slowly across a room: a coarse grid, bilinearly interpolated
 PATCH_TARGET_M = 0.25
+SHADOW_TEST_ORDER = 4
+"""Far images up to this order are shadow-tested one by one; beyond it they take the tested ones'
+visible fraction. In the sample tent with a 15 cm fan, images beyond order 4 carry 0.06 % of the
+canopy's light that the fan blocks (measured with every image tested), so the map moves < 0.1 %."""
 IMAGE_SHADOW_SUBDIVISION = 1.0
 """Penumbra nodes of mirror images are this much closer than their open-air nodes (direct light: 6);
 1 costs no accuracy: 0.85 % RMS against the Monte Carlo reference with 1, 2 or 6 (12 x 12 bins).
@@ -179,14 +183,17 @@ def specular_map(emitter: Emitter, grid: Grid, enc: Enclosure, boxes: tuple[Box,
 def _far_images(emitter: Emitter, points: np.ndarray, far: dict, enc: Enclosure, boxes) -> np.ndarray:
     """Irradiance at ``points`` from the far images, as point sources, grouped by mirror parity.
 
-    Their shadows are one folded test for all of them together (app/engine/shadows.py)."""
+    Images up to SHADOW_TEST_ORDER are shadow-tested, all together in one folded test
+    (app/engine/shadows.py); farther ones, each a tiny share, take the visible fraction those
+    tested images have at each point (a visibility map).
+    """
     out = np.zeros(points.shape[0])
     if not far:
         return out
     groups = list(far.items())
     ii = np.concatenate([[g[0] for g in grp] for _, grp in groups])
     jj = np.concatenate([[g[1] for g in grp] for _, grp in groups])
-    ww = np.concatenate([[g[2] for g in grp] for _, grp in groups])
+    ww = np.concatenate([[g[2] for g in grp] for _, grp in groups]) * emitter.flux_umol_s
     nodes = np.column_stack(
         [
             mirror_coordinate(emitter.x_m, ii, enc.width_m),
@@ -194,16 +201,19 @@ def _far_images(emitter: Emitter, points: np.ndarray, far: dict, enc: Enclosure,
             np.full(ii.size, emitter.z_m),
         ]
     )
-    shade = blocked(nodes, points, boxes, (enc.width_m, enc.length_m)) if boxes else None
+    k = np.empty((ii.size, points.shape[0]))
     start = 0
-    for mirror, grp in groups:
+    for m, grp in groups:
         sl = slice(start, start + len(grp))
         start += len(grp)
-        k = unit_irradiance(nodes[sl, None, :], points[None, :, :], emitter.distribution, emitter.rotation_deg, mirror)
-        if shade is not None:
-            k = np.where(shade[sl], 0.0, k)
-        out += (ww[sl] * emitter.flux_umol_s) @ k
-    return out
+        k[sl] = unit_irradiance(nodes[sl, None, :], points[None, :, :], emitter.distribution, emitter.rotation_deg, m)
+    if not boxes:
+        return ww @ k
+    tested = np.maximum(np.abs(ii), np.abs(jj)) <= SHADOW_TEST_ORDER
+    lit = ww[tested] @ np.where(blocked(nodes[tested], points, boxes, (enc.width_m, enc.length_m)), 0.0, k[tested])
+    open_tested = ww[tested] @ k[tested]
+    visible = np.divide(lit, open_tested, out=np.ones_like(lit), where=open_tested > 0)
+    return lit + visible * (ww[~tested] @ k[~tested])
 
 
 # -- radiosity for matt walls ------------------------------------------------

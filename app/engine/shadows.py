@@ -79,9 +79,10 @@ def _blocked_chunk(qb, pb, box, fold_m, grow_m):
     """Folded slab test on broadcastable arrays qb, pb (…, 3)."""
     x0, y0, z0, x1, y1, z1 = box
     gx, gy, gz = grow_m
-    d = qb - pb  # t = 0 at the receiver
-    pz = pb[..., 2]
-    dz = d[..., 2]
+    # One contiguous array per axis (slicing an (…, 3) array strides through memory).
+    pcomp = [np.ascontiguousarray(pb[..., k]) for k in range(3)]
+    dcomp = [qb[..., k] - pcomp[k] for k in range(3)]  # t = 0 at the receiver
+    pz, dz = pcomp[2], dcomp[2]
     with np.errstate(divide="ignore", invalid="ignore"):
         ta, tb = (z0 - gz - pz) / dz, (z1 + gz - pz) / dz
     inside_z = (pz > z0 - gz) & (pz < z1 + gz)
@@ -89,13 +90,15 @@ def _blocked_chunk(qb, pb, box, fold_m, grow_m):
     t_lo = np.where(flat, np.where(inside_z, 0.0, np.inf), np.minimum(ta, tb))
     t_hi = np.where(flat, np.where(inside_z, 1.0, -np.inf), np.maximum(ta, tb))
     t_lo, t_hi = np.maximum(t_lo, T_EPS), np.minimum(t_hi, 1.0 - T_EPS)
-    hit = np.zeros(dz.shape, dtype=bool)
+    shape = np.broadcast_shapes(qb.shape, pb.shape)[:-1]
+    t_lo, t_hi = np.broadcast_to(t_lo, shape), np.broadcast_to(t_hi, shape)
+    hit = np.zeros(shape, dtype=bool)
     live = t_hi > t_lo + T_EPS
     if not live.any():
         return hit
     axes = []
     for k, (lo, hi, g, size) in enumerate(((x0, x1, gx, fold_m[0]), (y0, y1, gy, fold_m[1]))):
-        pk, dk = pb[..., k], d[..., k]
+        pk, dk = pcomp[k], dcomp[k]
         u_a, u_b = pk + t_lo * dk, pk + t_hi * dk
         u_lo, u_hi = np.minimum(u_a, u_b), np.maximum(u_a, u_b)
         # Grown by t·g: conservative over the live range with the largest t.
