@@ -81,14 +81,14 @@ def brute_force(scene: EngineScene) -> list[np.ndarray]:
             nodes, flux = _dense_nodes(e)
             near = direct.relevant_boxes(e, g, scene.boxes, 1e9)
             total += irradiance_from_nodes(pts, nodes, flux, e.distribution, e.rotation_deg, boxes=near)
-            if scene.enclosure.finish == "specular":
+            if scene.enclosure.has_specular:
                 for i, j, w in image_list(e, g, scene.enclosure):
                     img = nodes.copy()
                     img[:, 0] = mirror_coordinate(nodes[:, 0], i, scene.enclosure.width_m)
                     img[:, 1] = mirror_coordinate(nodes[:, 1], j, scene.enclosure.length_m)
                     total += irradiance_from_nodes(pts, img, w * flux, e.distribution, e.rotation_deg)
         out.append(total.reshape(g.ny, g.nx))
-    if scene.enclosure.finish == "diffuse":
+    if scene.enclosure.has_diffuse:
         engine = run(scene)
         out = [o + z.reflected for o, z in zip(out, engine, strict=True)]
     return out

@@ -127,3 +127,37 @@ def test_huge_file_refused_by_size():
     with pytest.raises(RoomFileError) as exc:
         parse_room_file(b" " * (limits.MAX_BODY_BYTES + 1))
     assert exc.value.kind == "too_large"
+
+
+def test_a_0_1_room_keeps_its_one_finish_and_open_sides(tent_doc):
+    # Files written by 0.1 have wall_finish + open_sides only: every surface derives from them.
+    tent_doc["room"]["open_sides"] = ["front"]
+    room = parse_room_file(json.dumps(tent_doc)).room
+    assert room.surface_finishes == {}
+    assert room.finish_of("front").kind == "open"
+    for s in ("left", "right", "back", "ceiling"):
+        assert (room.finish_of(s).kind, room.finish_of(s).reflectance) == ("specular", 0.95)
+
+
+def test_per_surface_finishes_round_trip_and_reach_the_engine(tent_doc):
+    from app.room.roomfile import dump_room_file
+    from app.service.scene_builder import build_scene
+
+    tent_doc["room"]["surface_finishes"] = {
+        "front": {"kind": "open"},
+        "left": {"kind": "diffuse", "reflectance": 0.8, "label": "White board"},
+    }
+    rf = parse_room_file(json.dumps(tent_doc))
+    again = parse_room_file(json.dumps(dump_room_file(rf)))
+    assert again.room.surface_finishes == rf.room.surface_finishes
+    enc = build_scene(rf.room).enclosure
+    assert enc.surface("front") == ("open", 0.0)
+    assert enc.surface("left") == ("diffuse", 0.8)
+    assert enc.surface("back") == ("specular", 0.95)  # not listed: the room's wall_finish
+
+
+def test_unknown_surface_and_kind_are_named(tent_doc):
+    tent_doc["room"]["surface_finishes"] = {"floor": {"kind": "open"}, "left": {"kind": "glass"}}
+    fields = {f for f, _ in problems(tent_doc)}
+    assert any("surface_finishes" in f and "floor" in f for f in fields)
+    assert any("surface_finishes.left.kind" in f for f in fields)

@@ -107,7 +107,7 @@ def photon_budget(
     o, d, w = np.vstack(origins), np.vstack(dirs), np.concatenate(weights)
     W, L, H = enc.width_m, enc.length_m, enc.height_m
     rho = {s: enc.wall_reflectance(s) for s in ("left", "right", "front", "back")}
-    ceiling_rho = 0.0 if enc.finish == "absorbing" else enc.reflectance
+    ceiling_kind, ceiling_rho = enc.surface("ceiling")
     zone_z = np.array([g.z_m for g in grids])
     zone_lo = np.array([[g.x0_m, g.y0_m] for g in grids]).reshape(-1, 2)
     zone_hi = np.array([[g.x0_m + g.width_m, g.y0_m + g.length_m] for g in grids]).reshape(-1, 2)
@@ -156,28 +156,38 @@ def photon_budget(
         floor = (which == 2) & (d[:, 2] < 0)
         budget.floor_umol_s += w[floor].sum()
         ceiling = (which == 2) & (d[:, 2] > 0)
-        budget.walls_absorbed_umol_s += (w[ceiling] * (1 - ceiling_rho)).sum()
         normals = np.zeros_like(d)
-        normals[ceiling] = [0, 0, -1]
-        refl = ceiling.copy()
-        w = np.where(ceiling, w * ceiling_rho, w)
+        mirrored = np.zeros(n, dtype=bool)
+        if ceiling_kind == "open":
+            budget.escaped_umol_s += w[ceiling].sum()
+            refl = np.zeros(n, dtype=bool)
+        else:
+            budget.walls_absorbed_umol_s += (w[ceiling] * (1 - ceiling_rho)).sum()
+            normals[ceiling] = [0, 0, -1]
+            refl = ceiling & (ceiling_rho > 0)
+            mirrored |= refl if ceiling_kind == "specular" else False
+            w = np.where(ceiling, w * ceiling_rho, w)
         for axis, (lo_side, hi_side) in ((0, ("left", "right")), (1, ("front", "back"))):
             m = which == axis
             hi = m & (d[:, axis] > 0)
             lo = m & (d[:, axis] < 0)
             for sel, side, sign in ((hi, hi_side, -1.0), (lo, lo_side, 1.0)):
-                if side in enc.open_sides:
+                if enc.is_open(side):
                     budget.escaped_umol_s += w[sel].sum()
                     continue
                 r = rho[side]
                 budget.walls_absorbed_umol_s += (w[sel] * (1 - r)).sum()
                 w = np.where(sel, w * r, w)
                 normals[sel, axis] = sign
-                refl |= sel
-        if enc.finish == "specular":
-            new_d[refl] = d[refl] - 2 * np.sum(d[refl] * normals[refl], axis=1, keepdims=True) * normals[refl]
-        elif refl.any():
-            new_d[refl] = _cosine_hemisphere(normals[refl], rng)
+                if r > 0:
+                    refl |= sel
+                    if enc.surface(side)[0] == "specular":
+                        mirrored |= sel
+        spec = refl & mirrored
+        matt = refl & ~mirrored
+        new_d[spec] = d[spec] - 2 * np.sum(d[spec] * normals[spec], axis=1, keepdims=True) * normals[spec]
+        if matt.any():
+            new_d[matt] = _cosine_hemisphere(normals[matt], rng)
         alive = refl & (w > MIN_WEIGHT * max(budget.emitted_umol_s, 1e-30) / max(n, 1))
         budget.walls_absorbed_umol_s += w[refl & ~alive].sum()  # negligible leftovers end in the walls
         o = p[alive] + 1e-9 * normals[alive]

@@ -117,7 +117,7 @@ def fixture_on_grid(
     if not lights_grid(emitter, grid, cover_m):
         return None, None
     direct = direct_patch(emitter, grid, boxes, reference_drop_m=ref_drop_m)
-    spec = specular_map(emitter, grid, enc, boxes) if enc.finish == "specular" else None
+    spec = specular_map(emitter, grid, enc, boxes) if enc.has_specular else None
     return direct, spec
 
 
@@ -136,7 +136,7 @@ def compute_scene(
     boxes = BoxSet(boxes)
     out = []
     exitance = None
-    if enc.finish == "diffuse" and enc.reflectance > 0 and emitters:
+    if enc.has_diffuse and emitters:
         blockers = boxes + canopy_slabs(grids)
         e_patch = sum(_fixture_on_patches(e, enc, blockers) for e in emitters)
         exitance = radiosity_operator(enc, blockers) @ e_patch

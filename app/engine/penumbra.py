@@ -37,8 +37,8 @@ from app.engine.shadows import (
     box_copies,
     boxes_blocked,
     cloud_may_shade,
-    pairwise_blocked,
     grown_slab,
+    pairwise_blocked,
 )
 
 MAX_PAIRS = 1 << 19  # cell × point pairs per pass

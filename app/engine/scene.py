@@ -2,7 +2,7 @@
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 
 import numpy as np
 
@@ -106,13 +106,19 @@ class Box:
     z1_m: float
 
 
+SURFACES = ("left", "right", "front", "back", "ceiling")
+SURFACE_KINDS = ("specular", "diffuse", "absorbing", "open")
+
+
 @dataclass(frozen=True)
 class Enclosure:
     """The room's walls: a box 0..width × 0..length × 0..height.
 
-    finish : 'specular' (mirror images), 'diffuse' (radiosity) or 'absorbing'.
+    finish : 'specular' (mirror images), 'diffuse' (radiosity) or 'absorbing': one finish for all.
     reflectance : PAR reflectance of closed walls and ceiling.
     open_sides : subset of {'front' (y=0), 'back' (y=length), 'left' (x=0), 'right' (x=width)}.
+    surfaces : per-surface finishes ((surface, kind, reflectance), …) for any of SURFACES, kind one of
+        SURFACE_KINDS; a surface not listed takes ``finish`` / ``reflectance`` / ``open_sides``.
     """
 
     width_m: float
@@ -121,8 +127,43 @@ class Enclosure:
     finish: str = "absorbing"
     reflectance: float = 0.0
     open_sides: frozenset[str] = frozenset()
+    surfaces: tuple[tuple[str, str, float], ...] = ()
+
+    def surface(self, side: str) -> tuple[str, float]:
+        """(kind, PAR reflectance) of one surface; open and absorbing surfaces return 0."""
+        for name, kind, rho in self.surfaces:
+            if name == side:
+                return (kind, float(rho)) if kind in ("specular", "diffuse") else (kind, 0.0)
+        if side in self.open_sides:
+            return "open", 0.0
+        if self.finish == "absorbing":
+            return "absorbing", 0.0
+        return self.finish, self.reflectance
 
     def wall_reflectance(self, side: str) -> float:
-        if self.finish == "absorbing" or side in self.open_sides:
-            return 0.0
-        return self.reflectance
+        """Reflectance of a surface whatever its kind (0 when open or absorbing)."""
+        return self.surface(side)[1]
+
+    def mirror_reflectance(self, side: str) -> float:
+        """Reflectance of a surface that mirrors (0 unless specular)."""
+        kind, rho = self.surface(side)
+        return rho if kind == "specular" else 0.0
+
+    def is_open(self, side: str) -> bool:
+        return self.surface(side)[0] == "open"
+
+    @property
+    def has_specular(self) -> bool:
+        return any(self.mirror_reflectance(s) > 0 for s in SURFACES[:4])
+
+    @property
+    def has_diffuse(self) -> bool:
+        return any(self.surface(s)[0] == "diffuse" and self.surface(s)[1] > 0 for s in SURFACES)
+
+    def without_diffuse(self) -> Enclosure:
+        """The same room with its matt surfaces made absorbing (a cheaper, darker bound)."""
+        kinds = tuple(
+            (s, "absorbing" if self.surface(s)[0] == "diffuse" else self.surface(s)[0], self.surface(s)[1])
+            for s in SURFACES
+        )
+        return replace(self, surfaces=kinds)

@@ -55,6 +55,20 @@ class WallFinish(Strict):
     label: str = Field(default="", max_length=80)
 
 
+Surface = Literal["front", "back", "left", "right", "ceiling"]
+SURFACES: tuple[str, ...] = ("left", "right", "front", "back", "ceiling")
+
+
+class SurfaceFinish(Strict):
+    """One wall's (or the ceiling's) own finish: a mirror, matt paint, a dark surface, or an opening."""
+
+    kind: Literal["specular", "diffuse", "absorbing", "open"] = Field(
+        description="specular: mirror images; diffuse: radiosity; absorbing: no return; open: light escapes."
+    )
+    reflectance: float = Field(default=0.0, ge=0, le=1, description="PAR reflectance, 0-1 (unused when open).")
+    label: str = Field(default="", max_length=80)
+
+
 WALL_FINISHES: dict[str, WallFinish] = {
     # Reflectances: Lighting Research Center terminology pages, as collected in
     # shared/REFERENCES.md (photopic values, close to PAR for white surfaces).
@@ -228,6 +242,11 @@ class Room(Strict):
     height_m: float = Field(gt=0, le=limits.MAX_ROOM_HEIGHT_M)
     wall_finish: WallFinish = WALL_FINISHES["reflective_film"]
     open_sides: list[Side] = Field(default_factory=list, max_length=4)
+    surface_finishes: dict[Surface, SurfaceFinish] = Field(
+        default_factory=dict,
+        description="Per-surface finishes (left, right, front, back, ceiling); a surface not listed takes "
+        "wall_finish, or is open when it is in open_sides. Added in 0.2; 0.1 files keep their meaning.",
+    )
     zones: list[CanopyZone] = Field(min_length=1, max_length=limits.MAX_ZONES)
     fixture_types: list[FixtureType] = Field(default_factory=list, max_length=limits.MAX_FIXTURE_TYPES)
     fixtures: list[Fixture] = Field(default_factory=list, max_length=limits.MAX_FIXTURES)
@@ -240,6 +259,15 @@ class Room(Strict):
         default=0.0254, ge=limits.MIN_GRID_SPACING_M, le=1.0, description="Canopy grid spacing (1 inch)."
     )
     display_units: DisplayUnits = "imperial"
+
+    def finish_of(self, surface: str) -> SurfaceFinish:
+        """The finish a surface has: its own entry, else open (a listed open side) or the room's wall_finish."""
+        if surface in self.surface_finishes:
+            return self.surface_finishes[surface]
+        if surface in self.open_sides:
+            return SurfaceFinish(kind="open", label="Open")
+        wf = self.wall_finish
+        return SurfaceFinish(kind=wf.kind, reflectance=wf.reflectance, label=wf.label)
 
 
 class RoomFile(Strict):

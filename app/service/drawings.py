@@ -51,7 +51,7 @@ def plan_svg(room: Room, analysis: dict[str, Any], width_px: float = 640, fixtur
         f'<rect x="{sx(0):.1f}" y="{sy(room.length_m):.1f}" width="{room.width_m * scale:.1f}" '
         f'height="{room.length_m * scale:.1f}" fill="#fff" stroke="#222" stroke-width="2.5"/>'
     )
-    for side in room.open_sides:
+    for side in [s for s in ("front", "back", "left", "right") if room.finish_of(s).kind == "open"]:
         x0, y0, x1, y1 = {
             "front": (0, 0, room.width_m, 0),
             "back": (0, room.length_m, room.width_m, room.length_m),

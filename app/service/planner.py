@@ -25,7 +25,7 @@ import math
 import threading
 import time
 import uuid
-from dataclasses import dataclass, field, replace
+from dataclasses import dataclass, field
 from typing import Any
 
 import numpy as np
@@ -176,7 +176,7 @@ def _zone_search(
     scene = build_scene(room.model_copy(update={"fixtures": []}))
     # Matt-wall inter-reflection is left out of the search (it only adds light, and is costly per candidate);
     # the proposals are checked with it, by the full analysis, before they are offered.
-    enclosure = replace(scene.enclosure, finish="absorbing") if scene.enclosure.finish == "diffuse" else scene.enclosure
+    enclosure = scene.enclosure.without_diffuse() if scene.enclosure.has_diffuse else scene.enclosure
     spacing = max(room.grid_spacing_m, max(zone.width_m, zone.length_m) / PLANNER_POINTS_PER_SIDE)
     grid = zone_grid(zone, spacing)
     area = grid.cell_area_m2

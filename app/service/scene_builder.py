@@ -9,7 +9,7 @@ from dataclasses import dataclass
 from app.engine import distributions as dist
 from app.engine.cache import MIB, BoundedCache
 from app.engine.scene import Box, Emitter, Enclosure, Grid
-from app.room.models import Beam, CanopyZone, FixtureType, Room
+from app.room.models import SURFACES, Beam, CanopyZone, FixtureType, Room
 
 
 @dataclass(frozen=True)
@@ -76,7 +76,11 @@ def build_scene(room: Room) -> EngineScene:
     )
     grids = tuple(zone_grid(z, room.grid_spacing_m) for z in room.zones)
     wf = room.wall_finish
+    # Per-surface finishes only when the room has any: a 0.1 room keeps its one-finish enclosure.
+    surfaces = tuple(
+        (s, room.finish_of(s).kind, room.finish_of(s).reflectance) for s in SURFACES if room.surface_finishes
+    )
     enclosure = Enclosure(
-        room.width_m, room.length_m, room.height_m, wf.kind, wf.reflectance, frozenset(room.open_sides)
+        room.width_m, room.length_m, room.height_m, wf.kind, wf.reflectance, frozenset(room.open_sides), surfaces
     )
     return EngineScene(emitters, grids, enclosure, room_boxes(room))

@@ -166,7 +166,14 @@ def test_mirror_tent_with_a_fan_matches_monte_carlo_reference(fan):
     zl = compute_scene(fixtures, (g,), enc, (Box(*fan),))[0]
     nx = ny = 12
     tally = _mc_map(
-        fixtures, W, W, dict.fromkeys(("left", "right", "front", "back"), rho), (0, 0, W, W, 0.6, nx, ny), (fan,), 1_500_000, 5
+        fixtures,
+        W,
+        W,
+        dict.fromkeys(("left", "right", "front", "back"), rho),
+        (0, 0, W, W, 0.6, nx, ny),
+        (fan,),
+        1_500_000,
+        5,
     )
     ours = binned(zl.ppfd, g, nx, ny)
     rms = np.sqrt(np.mean((ours - tally) ** 2)) / tally.mean()

@@ -41,7 +41,9 @@ def _random_boxes(rng, W, L, n=2):
     out = []
     for _ in range(n):
         x0, y0, z0 = rng.uniform(0, W - 0.3), rng.uniform(0, L - 0.3), rng.uniform(0.3, 1.2)
-        out.append(Box(x0, y0, z0, x0 + rng.uniform(0.02, 0.3), y0 + rng.uniform(0.02, 0.3), z0 + rng.uniform(0.02, 0.4)))
+        out.append(
+            Box(x0, y0, z0, x0 + rng.uniform(0.02, 0.3), y0 + rng.uniform(0.02, 0.3), z0 + rng.uniform(0.02, 0.4))
+        )
     return tuple(out)
 
 
