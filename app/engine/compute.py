@@ -122,8 +122,8 @@ def fixture_on_grid(
 
 
 @memoise("fixture_on_patches", max_bytes=32 * MIB)
-def _fixture_on_patches(emitter: Emitter, enc: Enclosure, boxes: tuple[Box, ...]) -> np.ndarray:
-    e = patch_irradiance(emitter, enc, boxes)
+def _fixture_on_patches(emitter: Emitter, enc: Enclosure, boxes: tuple[Box, ...], cuts_m=()) -> np.ndarray:
+    e = patch_irradiance(emitter, enc, boxes, cuts_m)
     e.setflags(write=False)
     return e
 
@@ -136,10 +136,11 @@ def compute_scene(
     boxes = BoxSet(boxes)
     out = []
     exitance = None
+    cuts = tuple(sorted({round(g.z_m, 6) for g in grids}))
     if enc.has_diffuse and emitters:
         blockers = boxes + canopy_slabs(grids)
-        e_patch = sum(_fixture_on_patches(e, enc, blockers) for e in emitters)
-        exitance = radiosity_operator(enc, blockers) @ e_patch
+        e_patch = sum(_fixture_on_patches(e, enc, blockers, cuts) for e in emitters)
+        exitance = radiosity_operator(enc, blockers, cuts) @ e_patch
     covers = {g: covering_height_m(g, boxes) for g in grids}
     ref = {e: reference_drop_m(e, grids, covers) for e in emitters}
     for g in grids:
@@ -154,7 +155,7 @@ def compute_scene(
             if spec is not None:
                 reflected += spec
         if exitance is not None:
-            reflected += diffuse_map(enc, g, exitance)
+            reflected += diffuse_map(enc, g, exitance, cuts)
         out.append(ZoneLight(g, direct, reflected))
     return out
 

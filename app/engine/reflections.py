@@ -25,6 +25,7 @@ import numpy as np
 from app.engine.cache import MIB, memoise
 from app.engine.direct import blocked, irradiance_from_nodes, nearest_distance_m, relight_shadowed
 from app.engine.emitters import world_nodes
+from app.engine.formfactors import element_to_polygon
 from app.engine.penumbra import unit_irradiance
 from app.engine.scene import Box, Emitter, Enclosure, Grid
 
@@ -236,45 +237,50 @@ class Patches:
     areas: np.ndarray  # (P,)
     reflectance: np.ndarray  # (P,)
     subs: np.ndarray  # (P, 4, 3): 2 × 2 sub-points per patch, for transfers to nearby points
-
-    @property
-    def sub_points(self) -> np.ndarray:
-        return self.subs.reshape(-1, 3)
-
-    @property
-    def sub_normals(self) -> np.ndarray:
-        return np.repeat(self.normals, 4, axis=0)
-
-    @property
-    def sub_areas(self) -> np.ndarray:
-        return np.repeat(self.areas / 4.0, 4)
+    corners: np.ndarray  # (P, 4, 3) in order round each patch
 
 
 def _split(extent: float) -> int:
     return int(np.clip(np.ceil(extent / PATCH_TARGET_M), 2, MAX_PATCHES_PER_SIDE))
 
 
-@memoise("wall_patches", max_bytes=16 * MIB)
-def wall_patches(enc: Enclosure) -> Patches:
-    """Patches over the matt (diffuse) walls and ceiling, each with its surface's reflectance, normals inward."""
-    W, L, H = enc.width_m, enc.length_m, enc.height_m
-    cs, ns, ars, subs, rhos = [], [], [], [], []
+PATCH_SAMPLES = 2  # per side of a patch: its direct irradiance is the mean over 2 × 2 points
+MIN_CUT_M = 0.02  # a canopy height closer than this to a patch row edge moves no edge
 
-    def rect(origin, u_vec, v_vec, nu, nv, normal, rho):
-        u_vec, v_vec = np.asarray(u_vec, float), np.asarray(v_vec, float)
-        a = np.linalg.norm(u_vec) * np.linalg.norm(v_vec) / (nu * nv)
-        for a_i in range(nu):
-            for b_i in range(nv):
-                cs.append(np.asarray(origin, float) + u_vec * (a_i + 0.5) / nu + v_vec * (b_i + 0.5) / nv)
+
+def _edges(extent: float, n: int, cuts=()) -> np.ndarray:
+    """Edges (fractions 0..1) of n equal rows, plus a row edge at each cut in (0, extent)."""
+    edges = list(np.linspace(0.0, 1.0, n + 1))
+    for c in cuts:
+        f = c / extent
+        if 0 < f < 1 and min(abs(f - e) for e in edges) * extent >= MIN_CUT_M:
+            edges.append(f)
+    return np.array(sorted(edges))
+
+
+@memoise("wall_patches", max_bytes=16 * MIB)
+def wall_patches(enc: Enclosure, cuts_m: tuple[float, ...] = ()) -> Patches:
+    """Patches over the matt (diffuse) walls and ceiling, each with its surface's reflectance, normals inward.
+
+    Wall rows are split at each height in ``cuts_m`` (the canopies): a patch is then wholly above or
+    below a canopy, so the part a canopy hides from the fixtures is not lit by samples above it.
+    """
+    W, L, H = enc.width_m, enc.length_m, enc.height_m
+    cs, ns, ars, subs, rhos, cns = [], [], [], [], [], []
+    fs = (np.arange(PATCH_SAMPLES) + 0.5) / PATCH_SAMPLES
+
+    def rect(origin, u_vec, v_vec, eu, ev, normal, rho):
+        o, u_vec, v_vec = np.asarray(origin, float), np.asarray(u_vec, float), np.asarray(v_vec, float)
+        lu, lv = np.linalg.norm(u_vec), np.linalg.norm(v_vec)
+        for u0, u1 in zip(eu[:-1], eu[1:], strict=True):
+            for v0, v1 in zip(ev[:-1], ev[1:], strict=True):
+                cs.append(o + u_vec * (u0 + u1) / 2 + v_vec * (v0 + v1) / 2)
                 subs.append(
-                    [
-                        np.asarray(origin, float) + u_vec * (a_i + fu) / nu + v_vec * (b_i + fv) / nv
-                        for fu in (0.25, 0.75)
-                        for fv in (0.25, 0.75)
-                    ]
+                    [o + u_vec * (u0 + fu * (u1 - u0)) + v_vec * (v0 + fv * (v1 - v0)) for fu in fs for fv in fs]
                 )
+                cns.append([o + u_vec * uu + v_vec * vv for uu, vv in ((u0, v0), (u1, v0), (u1, v1), (u0, v1))])
                 ns.append(normal)
-                ars.append(a)
+                ars.append(lu * lv * (u1 - u0) * (v1 - v0))
                 rhos.append(rho)
 
     sides = {
@@ -283,36 +289,31 @@ def wall_patches(enc: Enclosure) -> Patches:
         "left": ((0, 0, 0), (0, L, 0), (0, 0, H), L, (1, 0, 0)),
         "right": ((W, 0, 0), (0, L, 0), (0, 0, H), L, (-1, 0, 0)),
     }
+    rows = _edges(H, _split(H), cuts_m)
     for side, (o, u, v, ext, nrm) in sides.items():
         kind, rho = enc.surface(side)
         if kind == "diffuse":
-            rect(o, u, v, _split(ext), _split(H), nrm, rho)
+            rect(o, u, v, _edges(ext, _split(ext)), rows, nrm, rho)
     kind, rho = enc.surface("ceiling")
     if kind == "diffuse":
-        rect((0, 0, H), (W, 0, 0), (0, L, 0), _split(W), _split(L), (0, 0, -1), rho)
+        rect((0, 0, H), (W, 0, 0), (0, L, 0), _edges(W, _split(W)), _edges(L, _split(L)), (0, 0, -1), rho)
     if not ars:
-        return Patches(np.zeros((0, 3)), np.zeros((0, 3)), np.zeros(0), np.zeros(0), np.zeros((0, 4, 3)))
-    return Patches(np.array(cs), np.array(ns, float), np.array(ars), np.array(rhos), np.array(subs))
-
-
-def _exchange(src_c, src_n, src_a, dst_c, dst_n):
-    """Irradiance at dst per unit exitance of each src patch: cos·cos·A / (π r² + A)."""
-    d = src_c[None, :, :] - dst_c[:, None, :]  # from dst to src
-    r2 = np.einsum("ijk,ijk->ij", d, d)
-    r = np.sqrt(np.maximum(r2, 1e-12))
-    cos_dst = np.maximum(np.einsum("ijk,ik->ij", d, dst_n) / r, 0.0)
-    cos_src = np.maximum(-np.einsum("ijk,jk->ij", d, src_n) / r, 0.0)
-    return cos_dst * cos_src * src_a[None, :] / (np.pi * r2 + src_a[None, :])
+        z = np.zeros((0, 4, 3))
+        return Patches(np.zeros((0, 3)), np.zeros((0, 3)), np.zeros(0), np.zeros(0), z, z)
+    return Patches(np.array(cs), np.array(ns, float), np.array(ars), np.array(rhos), np.array(subs), np.array(cns))
 
 
 @memoise("radiosity_operators", max_bytes=48 * MIB)
-def radiosity_operator(enc: Enclosure, blockers: tuple[Box, ...] = ()) -> np.ndarray:
+def radiosity_operator(enc: Enclosure, blockers: tuple[Box, ...] = (), cuts_m: tuple[float, ...] = ()) -> np.ndarray:
     """K with B = K @ E_direct: K = (I − ρ F)⁻¹ ρ, F_ij the irradiance at i per unit exitance of j.
 
-    ``blockers`` (obstacles and the canopy zones as thin slabs) hide patches from each other.
+    ``blockers`` (obstacles and the canopy zones as thin slabs) hide patches from each other;
+    ``cuts_m`` are the canopy heights the wall rows are split at (wall_patches).
     """
-    p = wall_patches(enc)
-    F = _exchange(p.centres, p.normals, p.areas, p.centres, p.normals)
+    p = wall_patches(enc, cuts_m)
+    # Exact element-to-rectangle factors from each patch centre (app/engine/formfactors.py): adjacent
+    # patches meet at right angles along room edges, where point-to-point estimates are worst.
+    F = element_to_polygon(p.centres, p.normals, p.corners)
     if blockers:
         inset = p.centres + 1e-6 * p.normals
         F = np.where(blocked(inset, inset, blockers), 0.0, F)
@@ -323,9 +324,11 @@ def radiosity_operator(enc: Enclosure, blockers: tuple[Box, ...] = ()) -> np.nda
     return K
 
 
-def patch_irradiance(emitter: Emitter, enc: Enclosure, boxes: tuple[Box, ...] = ()) -> np.ndarray:
-    """Direct irradiance [µmol m⁻² s⁻¹] of one emitter on every wall and ceiling patch."""
-    p = wall_patches(enc)
+def patch_irradiance(
+    emitter: Emitter, enc: Enclosure, boxes: tuple[Box, ...] = (), cuts_m: tuple[float, ...] = ()
+) -> np.ndarray:
+    """Direct irradiance [µmol m⁻² s⁻¹] of one emitter on every wall and ceiling patch (mean of its samples)."""
+    p = wall_patches(enc, cuts_m)
     walls = np.abs(p.normals[:, 2]) < 0.5
     e = np.zeros(len(p.areas))
     if not np.any(walls):
@@ -333,7 +336,7 @@ def patch_irradiance(emitter: Emitter, enc: Enclosure, boxes: tuple[Box, ...] = 
     d = np.min(np.linalg.norm(p.centres[walls] - [emitter.x_m, emitter.y_m, emitter.z_m], axis=1))
     nodes, flux = world_nodes(emitter, max(d, 0.05))
     sub = p.subs[walls].reshape(-1, 3)
-    sub_n = np.repeat(p.normals[walls], 4, axis=0)
+    sub_n = np.repeat(p.normals[walls], PATCH_SAMPLES**2, axis=0)
     e_sub = np.zeros(sub.shape[0])
     for i, j, w in _patch_images(enc):
         e_sub += irradiance_from_nodes(
@@ -347,7 +350,7 @@ def patch_irradiance(emitter: Emitter, enc: Enclosure, boxes: tuple[Box, ...] = 
             mirror=(-1.0 if i % 2 else 1.0, -1.0 if j % 2 else 1.0),
             fold_m=(enc.width_m, enc.length_m) if (i or j) else (None, None),
         )
-    e[walls] = e_sub.reshape(-1, 4).mean(axis=1)
+    e[walls] = e_sub.reshape(-1, PATCH_SAMPLES**2).mean(axis=1)
     return e  # downward emitters leave the ceiling dark
 
 
@@ -375,37 +378,120 @@ def _grid_points(grid: Grid, rows: slice = slice(None)) -> np.ndarray:
     return np.column_stack([gx.ravel(), gy.ravel(), np.full(gx.size, grid.z_m)])
 
 
+EDGE_CELLS = 2  # points this many spacings from a matt wall take their cell's mean transfer
+_GL3 = np.polynomial.legendre.leggauss(3)
+
+
+def _cell_edges(points: np.ndarray, start: float, extent: float) -> np.ndarray:
+    mid = 0.5 * (points[1:] + points[:-1])
+    return np.concatenate([[start], mid, [start + extent]])
+
+
 @memoise("patch_to_grid", max_bytes=48 * MIB)
-def patch_to_grid(enc: Enclosure, grid: Grid) -> np.ndarray:
-    """(M, P) irradiance at each grid point per unit exitance of each patch."""
-    R = _to_points(wall_patches(enc), _grid_points(grid)).astype(np.float32)
+def patch_to_grid(enc: Enclosure, grid: Grid, cuts_m: tuple[float, ...] = ()) -> np.ndarray:
+    """(M, P) irradiance at each grid point per unit exitance of each patch.
+
+    Grid points lie on the zone's edges; where a zone meets a matt wall the irradiance changes fast
+    (it rises to half the wall's exitance at the wall's foot), so points within EDGE_CELLS spacings
+    of a matt wall take the mean over their own cell (3 × 3 Gauss-Legendre points) rather than the
+    value at the point, and the map integrates to the light that lands.
+    """
+    R = _transfer(enc, wall_patches(enc, cuts_m), grid)
     R.setflags(write=False)
     return R
 
 
+def _transfer(enc: Enclosure, p: Patches, grid: Grid, rows: slice = slice(None)) -> np.ndarray:
+    """(M, P) transfer for the grid rows ``rows``, edge cells averaged (see patch_to_grid)."""
+    pts = _grid_points(grid, rows)
+    R = _to_points(p, pts)
+    near = _near_matt_wall(enc, grid, pts)
+    if near.any():
+        j_first = range(grid.ny)[rows].start if grid.ny else 0
+        xe = _cell_edges(grid.x_m, grid.x0_m, grid.width_m)
+        ye = _cell_edges(grid.y_m, grid.y0_m, grid.length_m)
+        idx = np.nonzero(near)[0]
+        i, j = idx % grid.nx, idx // grid.nx + j_first
+        t, w = _GL3
+        u = 0.5 * (t + 1.0)
+        sx = xe[i, None] + (xe[i + 1] - xe[i])[:, None] * u[None, :]  # (n, 3)
+        sy = ye[j, None] + (ye[j + 1] - ye[j])[:, None] * u[None, :]
+        sub = np.stack(
+            [np.repeat(sx, 3, axis=1), np.tile(sy, (1, 3)), np.full((idx.size, 9), grid.z_m)], axis=-1
+        ).reshape(-1, 3)
+        ww = (np.outer(w, w) / 4.0).ravel()
+        R[idx] = np.einsum("nsp,s->np", _to_points(p, sub).reshape(idx.size, 9, -1), ww.astype(np.float32))
+    return R
+
+
+def _near_matt_wall(enc: Enclosure, grid: Grid, pts: np.ndarray) -> np.ndarray:
+    reach = EDGE_CELLS * grid.spacing_m
+    out = np.zeros(pts.shape[0], dtype=bool)
+    for side, k, at in (("left", 0, 0.0), ("right", 0, enc.width_m), ("front", 1, 0.0), ("back", 1, enc.length_m)):
+        if enc.surface(side)[0] == "diffuse":
+            out |= np.abs(pts[:, k] - at) < reach
+    return out
+
+
+EXACT_WITHIN_SIZES = 3.0
+"""Patch-to-point transfers closer than this many patch diagonals use the exact configuration factor;
+farther ones the point formula cos·cos·A/(π r²), within 0.5 % there (tests/engine/test_formfactors.py)."""
+
+
 def _to_points(p: Patches, pts: np.ndarray) -> np.ndarray:
-    """(M, P) irradiance at upward points per unit patch exitance, from 2 × 2 sub-points per patch (float32)."""
-    c = p.sub_points.astype(np.float32)
-    n = p.sub_normals.astype(np.float32)
-    a = p.sub_areas.astype(np.float32)
+    """(M, P) irradiance at upward points (all at one height) per unit patch exitance.
+
+    Each patch is clipped at the points' horizon (the part of a wall below a canopy cannot light it).
+    Near patches: the exact element-to-rectangle factor (app/engine/formfactors.py); far ones: the
+    point formula at the clipped patch's centre.
+    """
+    z = float(pts[0, 2]) if len(pts) else 0.0
+    corners = p.corners.copy()
+    corners[..., 2] = np.maximum(corners[..., 2], z)
+    centres = corners.mean(axis=1)
+    e1, e2 = corners[:, 1] - corners[:, 0], corners[:, 3] - corners[:, 0]
+    area = np.linalg.norm(np.cross(e1, e2), axis=1)
+    diag = np.linalg.norm(e1 + e2, axis=1)
+    c, n, a = centres.astype(np.float32), p.normals.astype(np.float32), area.astype(np.float32)
     q = pts.astype(np.float32)
     dx = c[None, :, 0] - q[:, None, 0]
     dy = c[None, :, 1] - q[:, None, 1]
     dz = c[None, :, 2] - q[:, None, 2]
     r2 = dx * dx + dy * dy + dz * dz
     # cos at the receiver is Δz/r, at the patch −(d·n)/r; their product over r² is (…)/r².
+    r2 = np.maximum(r2, np.float32(1e-12))  # a zero-size clipped patch may sit on a point: zeroed below
     cc = np.maximum(dz, 0) * np.maximum(-(dx * n[:, 0] + dy * n[:, 1] + dz * n[:, 2]), 0) / r2
-    R = cc * a / (np.float32(np.pi) * r2 + a)
-    return R.reshape(pts.shape[0], -1, 4).sum(axis=2)
+    R = cc * a / (np.float32(np.pi) * r2)
+    near = r2 < (EXACT_WITHIN_SIZES * diag.astype(np.float32)) ** 2
+    mi, pi = np.nonzero(near)
+    if mi.size:
+        R[mi, pi] = _pair_factors(pts[mi], corners[pi])
+    R[:, area <= 0] = 0.0
+    return R
 
 
-def diffuse_map(enc: Enclosure, grid: Grid, exitance: np.ndarray) -> np.ndarray:
+def _pair_factors(p: np.ndarray, corners: np.ndarray) -> np.ndarray:
+    """Exact factors for matched pairs: upward elements p (K, 3) and rectangles corners (K, 4, 3)."""
+    out = np.empty(p.shape[0], dtype=np.float32)
+    step = 1 << 18
+    for a in range(0, p.shape[0], step):
+        r = corners[a : a + step] - p[a : a + step, None, :]
+        r /= np.maximum(np.linalg.norm(r, axis=-1, keepdims=True), 1e-12)
+        r_next = np.roll(r, -1, axis=1)
+        cross = np.cross(r, r_next)
+        sin = np.linalg.norm(cross, axis=-1)
+        gamma = np.arctan2(sin, np.clip(np.sum(r * r_next, axis=-1), -1.0, 1.0))
+        out[a : a + step] = np.abs(np.sum(gamma * cross[..., 2] / np.maximum(sin, 1e-15), axis=-1)) / (2 * np.pi)
+    return out
+
+
+def diffuse_map(enc: Enclosure, grid: Grid, exitance: np.ndarray, cuts_m: tuple[float, ...] = ()) -> np.ndarray:
     """Irradiance (ny, nx) on the grid from patches of the given exitance [µmol m⁻² s⁻¹]."""
-    p = wall_patches(enc)
+    p = wall_patches(enc, cuts_m)
     if grid.nx * grid.ny * len(p.areas) * 4 <= CACHE_TRANSFER_ELEMENTS:
-        return (patch_to_grid(enc, grid) @ exitance.astype(np.float32)).reshape(grid.ny, grid.nx)
+        return (patch_to_grid(enc, grid, cuts_m) @ exitance.astype(np.float32)).reshape(grid.ny, grid.nx)
     out = np.empty((grid.ny, grid.nx), dtype=np.float32)
     rows = max(1, CACHE_TRANSFER_ELEMENTS // (grid.nx * len(p.areas) * 4))
     for a in range(0, grid.ny, rows):
-        out[a : a + rows] = (_to_points(p, _grid_points(grid, slice(a, a + rows))) @ exitance).reshape(-1, grid.nx)
+        out[a : a + rows] = (_transfer(enc, p, grid, slice(a, a + rows)) @ exitance).reshape(-1, grid.nx)
     return out
