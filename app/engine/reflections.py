@@ -297,6 +297,9 @@ def wall_patches(enc: Enclosure, cuts_m: tuple[float, ...] = ()) -> Patches:
     kind, rho = enc.surface("ceiling")
     if kind == "diffuse":
         rect((0, 0, H), (W, 0, 0), (0, L, 0), _edges(W, _split(W)), _edges(L, _split(L)), (0, 0, -1), rho)
+    kind, rho = enc.surface("floor")
+    if kind == "diffuse":
+        rect((0, 0, 0), (W, 0, 0), (0, L, 0), _edges(W, _split(W)), _edges(L, _split(L)), (0, 0, 1), rho)
     if not ars:
         z = np.zeros((0, 4, 3))
         return Patches(np.zeros((0, 3)), np.zeros((0, 3)), np.zeros(0), np.zeros(0), z, z)
@@ -329,7 +332,7 @@ def patch_irradiance(
 ) -> np.ndarray:
     """Direct irradiance [µmol m⁻² s⁻¹] of one emitter on every wall and ceiling patch (mean of its samples)."""
     p = wall_patches(enc, cuts_m)
-    walls = np.abs(p.normals[:, 2]) < 0.5
+    walls = p.normals[:, 2] > -0.5  # walls and floor; downward emitters leave the ceiling dark
     e = np.zeros(len(p.areas))
     if not np.any(walls):
         return e
@@ -351,7 +354,7 @@ def patch_irradiance(
             fold_m=(enc.width_m, enc.length_m) if (i or j) else (None, None),
         )
     e[walls] = e_sub.reshape(-1, PATCH_SAMPLES**2).mean(axis=1)
-    return e  # downward emitters leave the ceiling dark
+    return e
 
 
 def _patch_images(enc: Enclosure) -> list[tuple[int, int, float]]:
@@ -433,9 +436,9 @@ def _near_matt_wall(enc: Enclosure, grid: Grid, pts: np.ndarray) -> np.ndarray:
     return out
 
 
-EXACT_WITHIN_SIZES = 3.0
+EXACT_WITHIN_SIZES = 5.0
 """Patch-to-point transfers closer than this many patch diagonals use the exact configuration factor;
-farther ones the point formula cos·cos·A/(π r²), within 0.5 % there (tests/engine/test_formfactors.py)."""
+farther ones the point formula cos·cos·A/(π r²), within 0.7 % there (tests/engine/test_formfactors.py)."""
 
 
 def _to_points(p: Patches, pts: np.ndarray) -> np.ndarray:

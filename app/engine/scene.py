@@ -118,7 +118,8 @@ class Enclosure:
     reflectance : PAR reflectance of closed walls and ceiling.
     open_sides : subset of {'front' (y=0), 'back' (y=length), 'left' (x=0), 'right' (x=width)}.
     surfaces : per-surface finishes ((surface, kind, reflectance), …) for any of SURFACES, kind one of
-        SURFACE_KINDS; a surface not listed takes ``finish`` / ``reflectance`` / ``open_sides``.
+        SURFACE_KINDS, or 'floor' (absorbing unless listed); a surface not listed takes ``finish`` /
+        ``reflectance`` / ``open_sides``.
     """
 
     width_m: float
@@ -134,6 +135,8 @@ class Enclosure:
         for name, kind, rho in self.surfaces:
             if name == side:
                 return (kind, float(rho)) if kind in ("specular", "diffuse") else (kind, 0.0)
+        if side == "floor":
+            return "absorbing", 0.0  # unless listed: 0.1 rooms have a dark floor
         if side in self.open_sides:
             return "open", 0.0
         if self.finish == "absorbing":
@@ -158,7 +161,7 @@ class Enclosure:
 
     @property
     def has_diffuse(self) -> bool:
-        return any(self.surface(s)[0] == "diffuse" and self.surface(s)[1] > 0 for s in SURFACES)
+        return any(self.surface(s)[0] == "diffuse" and self.surface(s)[1] > 0 for s in (*SURFACES, "floor"))
 
     def without_diffuse(self) -> Enclosure:
         """The same room with its matt surfaces made absorbing (a cheaper, darker bound)."""
