@@ -9,8 +9,8 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass, field
 
+from app.room.layout import covering_obstacle, zone_lit_by
 from app.room.models import CanopyZone, Fixture, FixtureType, Obstacle, Room
-from app.service.analysis import zone_below
 
 # Default hanging points when the fixture type records none: near the ends of a bar, near the corners of a
 # panel or bar array, inset from the edge by this much (common practice, no source).
@@ -51,8 +51,8 @@ def _overlap(a, b) -> bool:
 
 
 def lit_zone(room: Room, fixture: Fixture) -> CanopyZone | None:
-    """The zone a fixture lights (the one rule the analysis uses for hours and warnings)."""
-    return zone_below(room, fixture)
+    """The zone a fixture lights (the one layout rule, :mod:`app.room.layout`)."""
+    return zone_lit_by(room.zones, fixture)
 
 
 def tiers(room: Room) -> list[Tier]:
@@ -80,13 +80,14 @@ def tiers(room: Room) -> list[Tier]:
 
 
 def _shelves(room: Room, tier: Tier) -> tuple[Obstacle | None, Obstacle | None]:
+    """The shelf a tier's canopy stands on (highest top at or under it), and the one covering it (layout rule)."""
     canopy = min(z.canopy_height_m for z in tier.zones)
     over = [o for o in room.obstacles if any(_overlap(o, z) for z in tier.zones)]
     below = [o for o in over if o.z_m + o.height_m <= canopy + 1e-9]
-    above = [o for o in over if o.z_m >= canopy - 1e-9]
+    covers = [c for c in (covering_obstacle(room.obstacles, z) for z in tier.zones) if c is not None]
     return (
         max(below, key=lambda o: o.z_m + o.height_m) if below else None,
-        min(above, key=lambda o: o.z_m) if above else None,
+        min(covers, key=lambda o: o.z_m) if covers else None,
     )
 
 

@@ -15,7 +15,7 @@ from typing import Any
 import numpy as np
 
 from app.room.units import axis_unit, axis_value, fmt_number
-from app.service.drawings import viridis
+from app.service.colours import colours_at
 from app.service.sheet_labels import FONT, PT_MM
 
 TEXT_MM = 7.5 * PT_MM
@@ -40,7 +40,7 @@ class ColourScale:
         return np.clip(np.floor((np.asarray(v, float) - self.lo) / span * self.steps), 0, self.steps - 1).astype(int)
 
     def colour(self, i: int) -> str:
-        r, g, b = (int(round(c)) for c in viridis(np.array((i + 0.5) / self.steps)))
+        r, g, b = (int(round(c)) for c in colours_at(np.array((i + 0.5) / self.steps)))
         return f"#{r:02x}{g:02x}{b:02x}"
 
 

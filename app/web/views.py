@@ -12,6 +12,7 @@ from app.room.roomfile import dump_room_file
 from app.room.storage import RoomStore
 from app.room.units import format_length
 from app.service import sheet_data
+from app.service.colours import colour_scale
 
 
 def room_list(store: RoomStore) -> dict[str, Any]:
@@ -27,6 +28,7 @@ def editor(room_id: str, room_file: RoomFile, analysis: dict[str, Any]) -> dict[
         "fixture_library": [t.model_dump(mode="json") for t in fixture_library().values()],
         "crops": {cid: c.model_dump(mode="json") for cid, c in crops_for(room_file).items()},
         "wall_finishes": {k: v.model_dump(mode="json") for k, v in WALL_FINISHES.items()},
+        "colour_scale": colour_scale(),
         "version": __version__,
     }
 
