@@ -23,10 +23,23 @@ _EIGHTHS = {0: "", 1: "⅛", 2: "¼", 3: "⅜", 4: "½", 5: "⅝", 6: "¾", 7: "
 _NOISE_DIGITS = 12  # significant digits kept before rounding up, so 0.1 + 0.2 is not rounded up as 0.30000000000000004
 
 
-def round_half_away(value: float, digits: int = 0) -> float:
-    """Round half away from zero to ``digits`` decimals, on the number's shortest decimal form."""
+_D_M_PER_IN = Decimal("0.0254")  # exact, 1959
+_D_M_PER_FT = Decimal("0.3048")
+_D_KG_PER_LB = Decimal("0.45359237")
+
+
+def _dec(value: float | Decimal) -> Decimal:
+    return value if isinstance(value, Decimal) else Decimal(repr(float(value)))
+
+
+def round_half_away(value: float | Decimal, digits: int = 0) -> float:
+    """Round half away from zero to ``digits`` decimals, on the number's shortest decimal form.
+
+    A unit conversion is done on that decimal form too (``format_length`` divides by exactly 0.0254), so a
+    value that is exactly halfway in the displayed unit is not pushed below half by binary floating point.
+    """
     q = Decimal(1).scaleb(-digits)
-    return float(Decimal(repr(float(value))).quantize(q, rounding=ROUND_HALF_UP))
+    return float(_dec(value).quantize(q, rounding=ROUND_HALF_UP))
 
 
 def round_up(value: float, digits: int = 0) -> float:
@@ -35,7 +48,7 @@ def round_up(value: float, digits: int = 0) -> float:
     return float(d.quantize(Decimal(1).scaleb(-digits), rounding=ROUND_CEILING))
 
 
-def fmt_number(value: float | None, digits: int = 0) -> str:
+def fmt_number(value: float | Decimal | None, digits: int = 0) -> str:
     """A figure with a fixed number of decimals, rounded half away from zero ("–" for none)."""
     if value is None:
         return "–"
@@ -59,20 +72,20 @@ def format_length(m: float | None, system: str, fine: bool = False) -> str:
     if system == "imperial":
         sign = "−" if m < 0 else ""
         step = 8 if fine else 2
-        inches = round_half_away(abs(m) / M_PER_IN * step) / step
+        inches = round_half_away(abs(_dec(m)) / _D_M_PER_IN * step) / step
         ft = int(inches // 12)
         rest = inches - 12 * ft
         whole = int(rest + 1e-9)
         text = f"{whole}{_EIGHTHS[round((rest - whole) * 8)]}"
         return f"{sign}{ft}′ {text}″" if ft else f"{sign}{text}″"
     if abs(m) < 1:
-        return f"{round_half_away(m * 100, 1):g} cm"
+        return f"{round_half_away(_dec(m) * 100, 1):g} cm"
     return f"{round_half_away(m, 3):g} m"
 
 
 def format_area(m2: float, system: str) -> str:
     if system == "imperial":
-        return f"{fmt_number(m2 * FT2_PER_M2, 1)} ft²"
+        return f"{fmt_number(_dec(m2) / (_D_M_PER_FT * _D_M_PER_FT), 1)} ft²"
     return f"{fmt_number(m2, 2)} m²"
 
 
@@ -81,7 +94,7 @@ def format_weight(kg: float | None, system: str) -> str:
     if kg is None:
         return "–"
     if system == "imperial":
-        return f"{fmt_number(kg / KG_PER_LB, 1)} lb ({fmt_number(kg, 1)} kg)"
+        return f"{fmt_number(_dec(kg) / _D_KG_PER_LB, 1)} lb ({fmt_number(kg, 1)} kg)"
     return f"{fmt_number(kg, 1)} kg"
 
 
