@@ -79,7 +79,7 @@ def _chain(values, wall):
             stops.append(p)
     if wall - stops[-1] > 0.001:
         stops.append(wall)
-    return [b - a for a, b in zip(stops, stops[1:])]
+    return [b - a for a, b in zip(stops, stops[1:], strict=False)]
 
 
 @pytest.mark.parametrize("sample", SAMPLES, ids=lambda p: p.stem)
