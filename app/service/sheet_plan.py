@@ -246,7 +246,7 @@ def _label_shapes(f) -> list[tuple[float, float, bool]]:
 
 def _label_candidates(c, body: Box, w: float, h: float) -> list[tuple[float, float, bool]]:
     out = [(c[0], c[1], False)]
-    for d in (1.5, 4.0, 8.0, 13.0):
+    for d in (1.5, 4.0, 8.0, 13.0, 19.0, 26.0):
         out += [
             (body.x1 + d + w / 2, c[1], True),
             (body.x0 - d - w / 2, c[1], True),
@@ -268,17 +268,21 @@ def _fixture_label(s: _Svg, sh, P, circuits: list[str], k: float) -> None:
     tries = [(shape, cand) for shape in shapes for cand in _label_candidates(c, body, shape[0], shape[1]) if not cand[2]]
     tries += [(shape, cand) for shape in shapes for cand in _label_candidates(c, body, shape[0], shape[1]) if cand[2]]
     chosen = None
-    for (w, h, stacked), (cx, cy, leader) in tries:
-        box = Box(cx - w / 2, cy - h / 2, cx + w / 2, cy + h / 2)
-        if not leader and not box.inside(body.grow(0.01)):
-            continue
-        if not s.occ.free(box, owner=f.id):
-            continue
-        end = nearest_point_on_box(box, c)
-        if leader and not s.occ.line_free(end, c, owner=f.id):
-            continue
-        chosen = (box, leader, end, stacked)
-        break
+    # First a spot whose leader crosses nothing; failing that, one whose leader only crosses lines.
+    for strict in (True, False):
+        for (w, h, stacked), (cx, cy, leader) in tries:
+            box = Box(cx - w / 2, cy - h / 2, cx + w / 2, cy + h / 2)
+            if not leader and not box.inside(body.grow(0.01)):
+                continue
+            if not s.occ.free(box, owner=f.id):
+                continue
+            end = nearest_point_on_box(box, c)
+            if leader and strict and not s.occ.line_free(end, c, owner=f.id):
+                continue
+            chosen = (box, leader, end, stacked)
+            break
+        if chosen:
+            break
     if chosen is None:  # crowded: the last spot far out, still with its leader
         (w, h, stacked), (cx, cy, _) = tries[-1]
         box = Box(cx - w / 2, cy - h / 2, cx + w / 2, cy + h / 2)
