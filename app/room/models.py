@@ -234,7 +234,9 @@ class Entry(Strict):
 
     side: Side = "front"
     offset_m: Metres | None = Field(default=None, description="Centre along that wall from its left/front end.")
-    width_m: float = Field(default=0.8, gt=0, le=limits.MAX_ROOM_SIDE_M)
+    width_m: float | None = Field(
+        default=None, gt=0, le=limits.MAX_ROOM_SIDE_M, description="Opening width; none: 0.8 m or half a short wall."
+    )
     label: str = Field(default="Entry", min_length=1, max_length=40)
 
 

@@ -19,7 +19,7 @@ from ezdxf import units as dxf_units
 
 from app.room.models import Room
 from app.room.units import M_PER_IN
-from app.service.sheet_geometry import Tier, chain, fixture_shape, tiers
+from app.service.sheet_geometry import Tier, chain, entry_span, fixture_shape, tiers
 
 TEXT_HEIGHT_M = 0.03  # 3 cm text in the model (about 1.2 in)
 HANGING_MARK_R_M = 0.01
@@ -73,16 +73,14 @@ def _room(msp, room: Room, k: float) -> None:
     W, L = room.width_m * k, room.length_m * k
     msp.add_lwpolyline([(0, 0), (W, 0), (W, L), (0, L)], close=True, dxfattribs={"layer": "ROOM"})
     e = room.entry
-    wall = room.width_m if e.side in ("front", "back") else room.length_m
-    width = min(e.width_m, wall)
-    c = min(max(e.offset_m if e.offset_m is not None else wall / 2, width / 2), wall - width / 2)
-    a, b = (c - width / 2) * k, (c + width / 2) * k
+    side, a, b = entry_span(room)
+    a, b = a * k, b * k
     p, q = {
         "front": ((a, 0), (b, 0)),
         "back": ((a, L), (b, L)),
         "left": ((0, a), (0, b)),
         "right": ((W, a), (W, b)),
-    }[e.side]
+    }[side]
     msp.add_line(p, q, dxfattribs={"layer": "ROOM", "lineweight": 50})
     mid = ((p[0] + q[0]) / 2, (p[1] + q[1]) / 2)
     msp.add_text(e.label, height=TEXT_HEIGHT_M * k, dxfattribs={"layer": "ROOM"}).set_placement(

@@ -180,3 +180,16 @@ def chain(positions: list[float], wall_m: float) -> list[tuple[float, float]]:
     if wall_m - stops[-1] > DEDUPE_M:
         stops.append(wall_m)
     return list(zip(stops[:-1], stops[1:], strict=True))
+
+
+DEFAULT_ENTRY_WIDTH_M = 0.8  # a common interior door leaf (common practice, no source)
+
+
+def entry_span(room: Room) -> tuple[str, float, float]:
+    """The entry's wall and where along it the opening runs, (side, start, end) [m] from the wall's left/front end."""
+    e = room.entry
+    wall = room.width_m if e.side in ("front", "back") else room.length_m
+    width = min(e.width_m if e.width_m is not None else min(DEFAULT_ENTRY_WIDTH_M, wall / 2), wall)
+    centre = e.offset_m if e.offset_m is not None else wall / 2
+    centre = min(max(centre, width / 2), wall - width / 2)
+    return e.side, centre - width / 2, centre + width / 2

@@ -12,7 +12,7 @@ from html import escape
 
 from app.room.models import Room
 from app.room.units import M_PER_FT, M_PER_IN, format_length
-from app.service.sheet_geometry import Tier, chain, fixture_shape
+from app.service.sheet_geometry import Tier, chain, entry_span, fixture_shape
 from app.service.sheet_labels import (
     FONT,
     PT_MM,
@@ -156,18 +156,9 @@ def _on_wall(a, b, lo, hi) -> bool:
     )
 
 
-def _entry_span(room: Room) -> tuple[str, float, float]:
-    e = room.entry
-    wall = room.width_m if e.side in ("front", "back") else room.length_m
-    width = min(e.width_m, wall)
-    centre = e.offset_m if e.offset_m is not None else wall / 2
-    centre = min(max(centre, width / 2), wall - width / 2)
-    return e.side, centre - width / 2, centre + width / 2
-
-
 def _walls(s: _Svg, room: Room, P) -> None:
     W, L = room.width_m, room.length_m
-    side, a, b = _entry_span(room)
+    side, a, b = entry_span(room)
     ends = {"front": ((0, 0), (W, 0)), "back": ((0, L), (W, L)), "left": ((0, 0), (0, L)), "right": ((W, 0), (W, L))}
     for name, (p, q) in ends.items():
         dash = "3 2" if name in room.open_sides else ""
@@ -412,7 +403,7 @@ def _zone_labels(s: _Svg, tier: Tier, P, units: str) -> None:
 
 
 def _entry_label(s: _Svg, room: Room, P) -> None:
-    side, a, b = _entry_span(room)
+    side, a, b = entry_span(room)
     text = f"{room.entry.label} ({side} wall)"
     m = (a + b) / 2
     if side in ("front", "back"):

@@ -149,3 +149,43 @@ def test_one_colour_scale_whose_top_is_the_highest_value(sample):
         m = next(m for t in page["tiers"] for m in t["maps"] if m["zone_id"] == best["id"])
         fills = {r.get("fill") for r in ET.fromstring(m["svg"]).iter(SVG + "rect")}
         assert steps[-1].get("fill") in fills
+
+
+def test_recorded_hanging_points_entry_notes_and_price(tent_doc):
+    import copy
+    import io
+    import math
+
+    import ezdxf
+
+    from app.service.dxf_export import plan_dxf
+
+    doc = copy.deepcopy(tent_doc)
+    t = doc["room"]["fixture_types"][0]
+    t.update(hanging_points_m=[[-0.25, 0.0], [0.25, 0.0]], cord_note="1.8 m, grounded plug", driver_note="remote", price=120)
+    doc["room"]["entry"] = {"side": "left", "offset_m": 0.3, "label": "Zip"}
+    rf = parse_room_file(json.dumps(doc))
+    page = sheet("x", rf, analyse(rf), "a4")
+    row = page["bill_of_materials"]["rows"][0]
+    assert row["hanging_each"] == 2 and row["hanging_recorded"] and row["hanging_total"] == 4
+    assert row["notes"] == "cord: 1.8 m, grounded plug; driver: remote"
+    assert row["price_each"] == "120.00" and page["bill_of_materials"]["price_total"] == "240.00"
+    svg = ET.fromstring(page["tiers"][0]["plan_svg"])
+    assert sum(1 for g in svg.iter(SVG + "g") if g.get("class") == "sp-hanging") == 4
+    assert any(t.text == "Zip (left wall)" for t in svg.iter(SVG + "text"))
+    # In the DXF the points sit at the recorded offsets, turned with the fixture (90°: local x becomes +y).
+    dxf = ezdxf.read(io.StringIO(plan_dxf(rf.room).decode()))
+    pts = sorted((round(p.dxf.location.x * 0.0254, 4), round(p.dxf.location.y * 0.0254, 4)) for p in dxf.modelspace().query("POINT"))
+    want = []
+    for f in doc["room"]["fixtures"]:
+        a = math.radians(f["rotation_deg"])
+        for u, v in t["hanging_points_m"]:
+            want.append((round(f["x_m"] + u * math.cos(a) - v * math.sin(a), 4), round(f["y_m"] + u * math.sin(a) + v * math.cos(a), 4)))
+    assert pts == sorted(want)
+
+
+def test_an_entry_that_does_not_fit_its_wall_is_refused(client, tent_doc):
+    tent_doc["room"]["entry"] = {"side": "front", "width_m": 5}
+    r = client.post("/api/rooms", json=tent_doc)
+    assert r.status_code == 422
+    assert any(p["field"] == "room.entry.width_m" for p in r.json()["problems"])
