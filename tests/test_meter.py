@@ -12,10 +12,10 @@ import numpy as np
 import pytest
 from numpy.testing import assert_allclose
 
-from app.analysis import analyse
-from app.library import fixture_library
-from app.roomfile import RoomFileError, dump_room_file, parse_room_file, to_json_bytes
+from app.room.library import fixture_library
+from app.room.roomfile import RoomFileError, dump_room_file, parse_room_file, to_json_bytes
 from app.service import meter
+from app.service.analysis import analyse
 from app.service.core_areas import fixture_card
 from app.service.maintained import output_basis
 from tests.conftest import sample_doc

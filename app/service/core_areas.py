@@ -16,9 +16,9 @@ import numpy as np
 from app.engine import core_areas as ca
 from app.engine.compute import compute_scene
 from app.engine.scene import Enclosure
-from app.models import FixtureType
-from app.scene_builder import emitter_for
-from app.units import M_PER_FT
+from app.room.models import FixtureType
+from app.room.units import M_PER_FT
+from app.service.scene_builder import emitter_for
 
 CELLS_PER_STEP = 6  # 1 inch cells in imperial (half-side step 6 in), 2.5 cm in metric (step 15 cm)
 METRIC_STEP_M = 0.15

@@ -11,7 +11,7 @@ from __future__ import annotations
 from typing import Any
 
 from app.engine import maintenance as mt
-from app.models import FixtureType, Room
+from app.room.models import FixtureType, Room
 
 L70_PERCENT = 70.0  # the end of useful life most often quoted (L70)
 

@@ -17,8 +17,8 @@ import numpy as np
 from app.engine import readings as rd
 from app.engine.compute import compute_scene
 from app.engine.scene import Grid
-from app.models import FixtureType, ReadingSet, Room, RoomFile
-from app.scene_builder import build_scene
+from app.room.models import FixtureType, ReadingSet, Room, RoomFile
+from app.service.scene_builder import build_scene
 
 MAX_APPLIED_FACTOR = 3.0  # a fitted factor beyond 1/3-3 × is a setup error, not a fixture's output
 PPF_LIMIT_UMOL_S = 20000.0  # the model's own upper bound on a fixture type's PPF

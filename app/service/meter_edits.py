@@ -9,8 +9,8 @@ from __future__ import annotations
 from typing import Any
 
 from app.engine.spectrum import led_mix, spectrum_figures
-from app.models import RoomFile
-from app.roomfile import dump_room_file, parse_room_file
+from app.room.models import RoomFile
+from app.room.roomfile import dump_room_file, parse_room_file
 
 # Thimijan R.W. & Heins R.D. (1983), HortScience 18(6):818-822: lux per µmol m⁻² s⁻¹ (400-700 nm).
 PUBLISHED_LUX_FACTORS = (

@@ -6,12 +6,12 @@ import datetime as dt
 from typing import Any
 
 from app import __version__
-from app.analysis import zone_below
-from app.drawings import heatmap_svg, plan_svg
-from app.library import crops_for, fixture_library
-from app.models import WALL_FINISHES, RoomFile
-from app.roomfile import dump_room_file
-from app.storage import RoomStore
+from app.room.layout import zone_lit_by
+from app.room.library import crops_for, fixture_library
+from app.room.models import WALL_FINISHES, RoomFile
+from app.room.roomfile import dump_room_file
+from app.room.storage import RoomStore
+from app.service.drawings import heatmap_svg, plan_svg
 
 
 def room_list(store: RoomStore) -> dict[str, Any]:
@@ -37,7 +37,7 @@ def sheet(room_id: str, room_file: RoomFile, analysis: dict[str, Any], paper: st
     fixtures = []
     types = {t.id: t for t in room.fixture_types}
     for f in room.fixtures:
-        top = zone_below(room, f)
+        top = zone_lit_by(room.zones, f)
         fixtures.append(
             {
                 "id": f.id,

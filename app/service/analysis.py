@@ -1,7 +1,7 @@
 """From a room file to the one analysis structure that the editor, the sheet, the API and the CLI show.
 
 This is the service layer: it converts models to engine inputs
-(:mod:`app.scene_builder`), calls the engine, and turns arrays into plain data.
+(:mod:`app.service.scene_builder`), calls the engine, and turns arrays into plain data.
 """
 
 from __future__ import annotations
@@ -17,10 +17,11 @@ from app.engine import electrical as elec
 from app.engine import metrics as mx
 from app.engine.budget import photon_budget
 from app.engine.compute import compute_scene
-from app.library import crops_for
-from app.models import CanopyZone, Crop, Fixture, Room, RoomFile
-from app.scene_builder import build_scene
+from app.room import layout
+from app.room.library import crops_for
+from app.room.models import CanopyZone, Crop, Fixture, Room, RoomFile
 from app.service.maintained import output_basis
+from app.service.scene_builder import build_scene
 
 UNIFORMITY_NOTE_BELOW = 0.7  # Leafcast's own prompt, no source: no horticultural pass mark is published
 DEFAULT_MIN_DARK_H = 4.0  # common practice, no source (4-6 h for most crops)
@@ -54,15 +55,8 @@ def zone_photoperiod_h(room: Room, zone: CanopyZone) -> float:
 
 
 def zone_below(room: Room, fixture: Fixture) -> CanopyZone | None:
-    """The zone a fixture hangs over: the highest canopy below it whose rectangle holds its centre."""
-    below = [
-        z
-        for z in room.zones
-        if z.canopy_height_m < fixture.hanging_height_m
-        and z.x_m <= fixture.x_m <= z.x_m + z.width_m
-        and z.y_m <= fixture.y_m <= z.y_m + z.length_m
-    ]
-    return max(below, key=lambda z: z.canopy_height_m) if below else None
+    """The zone a fixture lights (the one layout rule, :func:`app.room.layout.zone_lit_by`)."""
+    return layout.zone_lit_by(room.zones, fixture)
 
 
 def _fixture_hours(room: Room) -> dict[str, float]:
@@ -439,6 +433,7 @@ def analyse(
         },
         "zones": zones_out,
         "fixtures": fixtures_out,
+        "fixture_zones": layout.fixture_zones(room.zones, room.fixtures),
         "energy": energy,
         "heat": heat,
         "circuits": circuits_out,
