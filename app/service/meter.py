@@ -99,6 +99,14 @@ def model_columns(room: Room, rs: ReadingSet, pts: dict[str, np.ndarray]) -> tup
     return a, used
 
 
+def zone_light(room_file: RoomFile, zone_id: str):
+    """The zone's computed light (direct and reflected) as the room's figures show it."""
+    room = room_file.room
+    scene = build_scene(room)
+    k = next(i for i, z in enumerate(room.zones) if z.id == zone_id)
+    return compute_scene(scene.emitters, scene.grids, scene.enclosure, scene.boxes)[k]
+
+
 def compare(room_file: RoomFile, set_id: str, fit: str = "room", outlier_factor: float = rd.OUTLIER_FACTOR) -> dict:
     """Readings against the model: residuals, RMS, worst point, outliers and the fitted factor(s).
 
