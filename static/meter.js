@@ -141,13 +141,18 @@
 
   // ------------------------------------------------------------ compare
   const diverging = [[0, "#2166ac"], [0.5, "#f7f7f7"], [1, "#b2182b"]];
+  // The colour scale spans the readings that are not outliers, so one slip does not wash out the rest.
+  function colourLimit(r) {
+    const kept = r.points.filter((p) => !p.outlier && p.diff_pct !== null).map((p) => Math.abs(p.diff_pct));
+    return Math.max(5, ...kept);
+  }
   function planFigure(r) {
     const z = room.zones.find((q) => q.id === r.zone_id);
     const shapes = room.zones.map((q) => ({ type: "rect", x0: ax(q.x_m), y0: ax(q.y_m), x1: ax(q.x_m + q.width_m), y1: ax(q.y_m + q.length_m),
       line: { color: q.id === r.zone_id ? "#333" : "#bbb", width: q.id === r.zone_id ? 2 : 1 } }));
     shapes.push({ type: "rect", x0: 0, y0: 0, x1: ax(room.width_m), y1: ax(room.length_m), line: { color: "#888", dash: "dot" } });
     const pts = r.points;
-    const lim = Math.max(5, ...pts.map((p) => Math.abs(p.diff_pct || 0)));
+    const lim = colourLimit(r);
     const traces = [
       { type: "scatter", mode: "markers", name: "fixtures", x: room.fixtures.map((f) => ax(f.x_m)), y: room.fixtures.map((f) => ax(f.y_m)),
         marker: { symbol: "square", size: 9, color: "#444" }, text: room.fixtures.map((f) => f.id), hoverinfo: "text" },
@@ -169,7 +174,7 @@
       r.points.forEach((p) => { z[p.row][p.col] = p.diff_pct; t[p.row][p.col] = `${fmt(p.diff_umol)} µmol m⁻² s⁻¹`; });
       const xs = [...Array(cols).keys()].map((c) => ax(rs.grid.origin_x_m + c * rs.grid.spacing_x_m));
       const ys = [...Array(rows).keys()].map((k) => ax(rs.grid.origin_y_m + k * rs.grid.spacing_y_m));
-      const lim = Math.max(5, ...r.points.map((p) => Math.abs(p.diff_pct || 0)));
+      const lim = colourLimit(r);
       return { traces: [{ type: "heatmap", x: xs, y: ys, z, text: t, zmin: -lim, zmax: lim, colorscale: diverging, texttemplate: "%{z:.0f} %", hovertemplate: "%{z:.1f} % · %{text}<extra></extra>", colorbar: { title: { text: "%" } } }],
         layout: { title: { text: "Residual map (measured − model, %)", font: { size: 13 } }, margin: { l: 45, r: 10, t: 30, b: 40 }, xaxis: { title: { text: axUnit } }, yaxis: { title: { text: axUnit }, scaleanchor: "x" } } };
     }
@@ -182,7 +187,7 @@
     const w = r.worst_index !== null ? r.points[r.worst_index] : null;
     const outl = r.points.map((p, i) => (p.outlier ? i : -1)).filter((i) => i >= 0);
     const factors = f.error ? `<p class="warning">No fit: ${esc(f.error)}</p>` : `<table class="figures" id="fit-table"><thead><tr><th>Fitted</th><th>Output factor</th><th>Standard error</th></tr></thead><tbody>${
-      f.factors.map((k) => `<tr><td>${esc(k.label)}</td><td>${fmt(k.factor, 3)}</td><td>${k.std_error === null ? "– (as many readings as unknowns)" : `± ${fmt(k.std_error, 3)}`}</td></tr>`).join("")}</tbody></table>
+      f.factors.map((k) => `<tr><td>${esc(k.label)}</td><td>${fmt(k.factor, 3)}</td><td>${k.std_error === null ? "– (as many readings as unknowns)" : `± ${fmt(k.std_error, 4)}`}</td></tr>`).join("")}</tbody></table>
       <p class="small">Least squares over ${f.used_points} readings${f.left_out ? `, ${f.left_out} outlier(s) left out` : ""}; residual RMS after the fit ${fmt(f.residual_rms_umol, 1)} µmol m⁻² s⁻¹.</p>`;
     $("compare-figures").innerHTML = `<ul class="figures-list">
       <li>Average measured <b>${fmt(r.measured_avg)}</b>, model <b>${fmt(r.model_avg)}</b> µmol m⁻² s⁻¹ (mean difference ${fmt(r.mean_pct, 1)} %)</li>
@@ -279,6 +284,7 @@
         { title: { text: "PPFD under the fixture, with the nested squares", font: { size: 13 } }, shapes, margin: { l: 45, r: 10, t: 30, b: 40 }, xaxis: { title: { text: axUnit } }, yaxis: { title: { text: axUnit }, scaleanchor: "x" } },
         { displaylogo: false, staticPlot: false, responsive: true });
       $("card-message").textContent = "";
+      $("card-map").hidden = false;
       $("card-print").disabled = false;
     } catch (e) { failed($("card-message"), "No card", e); }
   });
