@@ -204,7 +204,7 @@ def analyse(
         flux = float((ppfd * area).sum())
         direct_flux = float((zl.direct * area).sum())
         canopy_flux += flux
-        canopy_photons_mol_day += flux * photoperiod * 3600 / 1e6
+        canopy_photons_mol_day += flux * photoperiod * mx.DLI_FACTOR
         target_mid = 0.5 * (stage.dli_min + stage.dli_max)
         hours_for_min = float(mx.photoperiod_for_dli_h(stage.dli_min, stats["avg"])) if stats["avg"] > 0 else None
         hours_for_min_everywhere = (
