@@ -9,6 +9,14 @@
   const fmt = (v, d = 0) => (v === null || v === undefined || !isFinite(v) ? "–" : Number(v).toFixed(d));
   const esc = (s) => String(s).replace(/[&<>"']/g, (c) => ({ "&": "&amp;", "<": "&lt;", ">": "&gt;", '"': "&quot;", "'": "&#39;" }[c]));
   const len = (m) => Units.length(m, units);
+  // A length written into an input box in a form Units.parseLength reads back (no ½ or ⅛ characters).
+  function inputLen(m) {
+    if (units !== "imperial") return `${Math.round(m * 1000) / 10} cm`;
+    const inches = Math.round((m / Units.M_PER_IN) * 10) / 10;
+    const ft = Math.floor(inches / 12);
+    const rest = Math.round((inches - 12 * ft) * 10) / 10;
+    return ft ? `${ft}' ${rest}"` : `${rest}"`;
+  }
   const ax = (m) => Units.axisValue(m, units);
   const axUnit = Units.axisUnit(units);
   let room = page.room_file.room;
@@ -57,8 +65,8 @@
       $("rs-id").value = `readings-${room.readings.length + 1}`;
       $("rs-date").value = new Date().toISOString().slice(0, 10);
       $("rs-paste").value = ""; $("rs-notes").value = ""; $("rs-dim").value = "";
-      $("rs-ox").value = len(0.1524); $("rs-oy").value = len(0.1524);
-      $("rs-sx").value = len(units === "imperial" ? 0.3048 : 0.3); $("rs-sy").value = $("rs-sx").value;
+      $("rs-ox").value = inputLen(0.1524); $("rs-oy").value = inputLen(0.1524);
+      $("rs-sx").value = inputLen(units === "imperial" ? 0.3048 : 0.3); $("rs-sy").value = $("rs-sx").value;
       syncForm();
       return;
     }
@@ -68,12 +76,12 @@
     $("rs-notes").value = r.notes || "";
     if (r.grid) {
       $("rs-layout").value = "grid";
-      $("rs-ox").value = len(r.grid.origin_x_m); $("rs-oy").value = len(r.grid.origin_y_m);
-      $("rs-sx").value = len(r.grid.spacing_x_m); $("rs-sy").value = len(r.grid.spacing_y_m);
+      $("rs-ox").value = inputLen(r.grid.origin_x_m); $("rs-oy").value = inputLen(r.grid.origin_y_m);
+      $("rs-sx").value = inputLen(r.grid.spacing_x_m); $("rs-sy").value = inputLen(r.grid.spacing_y_m);
       $("rs-paste").value = r.grid.values.map((row) => row.map((v) => (v === null ? "-" : v)).join("\t")).join("\n");
     } else {
       $("rs-layout").value = "points";
-      $("rs-paste").value = r.points.map((p) => `${len(p.x_m)}\t${len(p.y_m)}\t${p.value}`).join("\n");
+      $("rs-paste").value = r.points.map((p) => `${inputLen(p.x_m)}\t${inputLen(p.y_m)}\t${p.value}`).join("\n");
     }
     syncForm();
   }
@@ -269,7 +277,7 @@
   function lengthField(id, what) {
     try { return Units.parseLength($(id).value, units); } catch (e) { throw new Error(`${what}: ${e.message}`); }
   }
-  $("card-height").value = len(units === "imperial" ? 0.4572 : 0.45);
+  $("card-height").value = inputLen(units === "imperial" ? 0.4572 : 0.45);
   $("card-run").addEventListener("click", async () => {
     let h;
     try { h = lengthField("card-height", "height"); } catch (e) { $("card-message").textContent = e.message; return; }
@@ -301,12 +309,12 @@
     } catch (e) { failed($("spot-message"), "Not averaged", e); }
   });
   const firstZone = room.zones[0];
-  if (firstZone) { $("spot-x").value = len(firstZone.x_m + firstZone.width_m / 2); $("spot-y").value = len(firstZone.y_m + firstZone.length_m / 2); }
+  if (firstZone) { $("spot-x").value = inputLen(firstZone.x_m + firstZone.width_m / 2); $("spot-y").value = inputLen(firstZone.y_m + firstZone.length_m / 2); }
   const params = new URLSearchParams(location.search);
   if (params.get("zone") && params.get("x_m") && params.get("y_m")) {
     // Arriving from the editor's "nested squares from here".
     $("spot-zone").value = params.get("zone");
-    $("spot-x").value = len(Number(params.get("x_m"))); $("spot-y").value = len(Number(params.get("y_m")));
+    $("spot-x").value = inputLen(Number(params.get("x_m"))); $("spot-y").value = inputLen(Number(params.get("y_m")));
     setTimeout(() => $("spot-run").click(), 0);
   }
 

@@ -49,6 +49,16 @@ def test_paste_compare_apply_age_and_card(live_server, page, artifacts):
     ppf = api(live_server, f"/api/rooms/{room}")["room"]["fixture_types"][0]["ppf_umol_s"]
     assert abs(ppf - 0.85 * 650) < 15
 
+    # A saved set loads back into the form in a form that saves again unchanged.
+    page.select_option("#set-pick", "first-check")
+    page.click("#set-editor summary")
+    page.click("#rs-save")
+    page.wait_for_function("() => document.getElementById('rs-message').textContent.startsWith('Saved first-check')")
+    again = api(live_server, f"/api/rooms/{room}")["room"]["readings"][0]
+    assert again["grid"]["values"] == stored["grid"]["values"]
+    for k in ("origin_x_m", "origin_y_m", "spacing_x_m", "spacing_y_m"):
+        assert abs(again["grid"][k] - stored["grid"][k]) < 1e-4  # to the 0.1 inch the form shows
+
     # A grid that does not fit the tent is refused with the reason.
     page.select_option("#set-pick", "")
     page.fill("#rs-paste", "1 2 3 4 5 6")
@@ -59,7 +69,9 @@ def test_paste_compare_apply_age_and_card(live_server, page, artifacts):
     page.fill("#maint-table input.m-pct", "90")
     page.fill("#maint-table input.m-hours", "36000")
     page.click("#age-save")
-    page.wait_for_function("() => document.getElementById('age-message').textContent.includes('maintained at 18,000 h')")
+    page.wait_for_function(
+        "() => document.getElementById('age-message').textContent.includes('maintained at 18,000 h')"
+    )
     assert "94.9 % of rated" in page.locator("#maint-table").inner_text()  # √0.9 = 0.9487
 
     page.select_option("#card-type", "panel-0.6")
@@ -71,4 +83,23 @@ def test_paste_compare_apply_age_and_card(live_server, page, artifacts):
     page.emulate_media(media="print")
     assert not page.locator("#readings-title").is_visible() and page.locator("#card-title").is_visible()
     page.screenshot(path=str(artifacts / "meter-card-print.png"), full_page=True)
+    assert page.errors == []
+
+
+def test_nested_squares_from_a_drawn_area(live_server, page):
+    room = fresh_room(live_server, name="Squares from here tent")
+    page.goto(f"{live_server}/rooms/{room}")
+    page.wait_for_function("() => window.leafcast && window.leafcast.ready")
+    page.check("#area-mode")
+    box = page.locator("#plan .zone").first.bounding_box()
+    x, y = box["x"] + box["width"] * 0.4, box["y"] + box["height"] * 0.4
+    page.mouse.move(x, y)
+    page.mouse.down()
+    page.mouse.move(x + 40, y + 30, steps=5)
+    page.mouse.up()
+    page.wait_for_selector("#regions a.squares-link")
+    page.click("#regions a.squares-link")
+    page.wait_for_selector("#spot-body table.squares")
+    assert page.locator("#spot-body tbody tr").count() == 5
+    assert "Centred at" in page.locator("#spot-message").inner_text()
     assert page.errors == []
