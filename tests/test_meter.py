@@ -351,3 +351,14 @@ def test_fixture_card_averages_fall_with_square_size_in_feet_and_metres():
     assert all(0 < s < 1 for s in shares) and shares == sorted(shares)
     metric = fixture_card(t, 0.45, "metric")
     assert_allclose([r["side_m"] for r in metric["squares"]], [0.3, 0.6, 0.9, 1.2, 1.5])
+
+
+def test_planner_curves_use_the_maintained_output():
+    # The height and dimming curves scale with the output at the shown age, like the analysis:
+    # L90 at 36,000 h at 36,000 h in service is 0.9 of the output (IES TM-21 exponential form).
+    from app.service.planner import curves
+
+    new = curves(maintained_doc(), "bench")
+    aged = curves(maintained_doc(hours_in_service_h=36000), "bench")
+    assert_allclose([r["avg"] for r in aged["heights"]], [0.9 * r["avg"] for r in new["heights"]], rtol=1e-5)
+    assert_allclose([r["avg"] for r in aged["dimming"]], [0.9 * r["avg"] for r in new["dimming"]], rtol=1e-5)

@@ -79,3 +79,9 @@ def output_factors(room: Room) -> dict[str, float]:
     if age is None:
         return {t.id: 1.0 for t in room.fixture_types}
     return {t.id: type_basis(room, t, age)["factor"] for t in room.fixture_types}
+
+
+def factor_for(room: Room, t: FixtureType) -> float:
+    """One type's factor in this room at the shown age, also for a library type the room does not hold yet."""
+    age = shown_age_h(room)
+    return 1.0 if age is None else type_basis(room, t, age)["factor"]
