@@ -133,3 +133,22 @@ def test_meter_page_and_its_json(client, tent_doc):
     assert html.status_code == 200 and "Model against meter" in html.text
     data = client.get(f"/rooms/{room_id}/meter?format=json").json()
     assert data["units"] == "imperial" and any(p["lux_per_ppfd"] == 82.0 for p in data["lux_presets"])
+
+
+def test_sheet_prints_the_readings_beside_the_model_and_the_output_age(client, tent_doc):
+    room_id, rev = tent(client, tent_doc)
+    pts = [{"x_m": 0.3, "y_m": 0.6, "value": 500}, {"x_m": 0.9, "y_m": 0.6, "value": 510}]
+    s = {"id": "spot-check", "zone_id": "tent-floor", "taken_on": "2026-11-30", "points": pts}
+    rev = client.post(f"/api/rooms/{room_id}/readings", json={"revision": rev, "reading_set": s}).json()["revision"]
+    body = {
+        "revision": rev,
+        "output_age": {"hours_in_service_h": 12000},
+        "maintenance": {"bararray-4x0.6": {"rated_percent": 90, "rated_hours_h": 36000}},
+    }
+    assert client.post(f"/api/rooms/{room_id}/output-age", json=body).status_code == 200
+    data = client.get(f"/rooms/{room_id}/sheet?format=json").json()
+    (m,) = data["meter"]
+    assert m["id"] == "spot-check" and len(m["points"]) == 2 and m["factor"]["factor"] > 0
+    html = client.get(f"/rooms/{room_id}/sheet").text
+    assert "Meter readings beside the model" in html and "spot-check" in html
+    assert "maintained at 12,000 h in service" in html

@@ -214,3 +214,27 @@ def apply_factors(room_file: RoomFile, set_id: str, fit: str = "room") -> tuple[
         changed.append({"type_id": t.id, "old_ppf_umol_s": t.ppf_umol_s, "new_ppf_umol_s": new_ppf, **f})
     room = room_file.room.model_copy(update={"fixture_types": types})
     return room_file.model_copy(update={"room": room}), changed
+
+
+SHEET_MAX_POINTS = 48  # a sheet lists at most this many readings per set (it must fit one or two pages)
+
+
+def sheet_summary(room_file: RoomFile) -> list[dict[str, Any]]:
+    """Each reading set beside the model, compact enough for the layout sheet."""
+    out = []
+    for rs in room_file.room.readings:
+        row: dict[str, Any] = {"id": rs.id, "zone_id": rs.zone_id, "taken_on": rs.taken_on.isoformat()}
+        row.update(sensor=rs.sensor, lux_per_ppfd=rs.lux_per_ppfd, dimming_pct=rs.dimming_pct)
+        try:
+            c = compare(room_file, rs.id)
+        except MeterError as exc:
+            row["error"] = str(exc)
+            out.append(row)
+            continue
+        row.update(error=None, rms_umol=c["rms_umol"], rms_pct=c["rms_pct"], mean_pct=c["mean_pct"])
+        row["factor"] = c["fit"]["factors"][0] if c["fit"]["factors"] else None
+        row["outliers"] = sum(p["outlier"] for p in c["points"])
+        row["points"] = c["points"][:SHEET_MAX_POINTS]
+        row["points_left_out"] = max(0, len(c["points"]) - SHEET_MAX_POINTS)
+        out.append(row)
+    return out
