@@ -28,4 +28,25 @@
     });
   }
   new MutationObserver(addLinks).observe(host, { childList: true, subtree: true });
+
+  // Say at which output age the figures are shown when it is not installation (set on the meter page).
+  const figures = document.getElementById("figures");
+  function basisNote() {
+    const a = window.leafcast && window.leafcast.analysis;
+    const b = a && a.output_basis;
+    const old = figures.querySelector(".output-basis");
+    const text = b && b.age_h !== null ? `Output shown ${b.words}.` : "";
+    if (old && old.dataset.text === text) return;
+    if (old) old.remove();
+    if (!text) return;
+    const p = document.createElement("p");
+    p.className = "small output-basis";
+    p.dataset.text = text;
+    p.innerHTML = `${text.replace(/[&<>]/g, "")} <a href="/rooms/${page.room_id}/meter#age-title">Change</a>`;
+    figures.prepend(p);
+  }
+  if (figures) {
+    new MutationObserver(basisNote).observe(figures, { childList: true });
+    basisNote();
+  }
 })();

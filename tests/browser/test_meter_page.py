@@ -103,3 +103,19 @@ def test_nested_squares_from_a_drawn_area(live_server, page):
     assert page.locator("#spot-body tbody tr").count() == 5
     assert "Centred at" in page.locator("#spot-message").inner_text()
     assert page.errors == []
+
+
+def test_editor_says_when_figures_are_maintained(live_server, page):
+    room = fresh_room(live_server, name="Aged tent")
+    doc = api(live_server, f"/api/rooms/{room}")
+    body = {
+        "revision": doc["revision"],
+        "output_age": {"hours_in_service_h": 20000, "dirt_factor": 0.95},
+        "maintenance": {"bararray-4x0.6": {"rated_percent": 90, "rated_hours_h": 36000}},
+    }
+    api(live_server, f"/api/rooms/{room}/output-age", "POST", body)
+    page.goto(f"{live_server}/rooms/{room}")
+    page.wait_for_function("() => window.leafcast && window.leafcast.ready")
+    page.wait_for_selector("#figures .output-basis")
+    assert "maintained at 20,000 h in service, dirt factor 0.95" in page.locator("#figures .output-basis").inner_text()
+    assert page.errors == []
