@@ -20,15 +20,16 @@ from pathlib import Path
 
 import numpy as np
 
+from app.assets import asset_dir
 from app.engine import compute, direct, reflections
 from app.engine.compute import compute_scene
 from app.engine.direct import irradiance_from_nodes
 from app.engine.emitters import local_nodes
 from app.engine.reflections import image_list, mirror_coordinate
-from app.farm import vertical_farm
-from app.roomfile import parse_room_file
-from app.scene_builder import EngineScene, build_scene
-from app.settings import CHROMIUM_FLAGS, PROJECT_ROOT
+from app.room.roomfile import parse_room_file
+from app.service.farm import vertical_farm
+from app.service.scene_builder import EngineScene, build_scene
+from app.settings import CHROMIUM_FLAGS
 
 
 def clear_fixture_caches() -> None:
@@ -202,7 +203,7 @@ def browser_latency(rooms: list[str], moves: int = 25) -> list[dict]:
 
 
 def sample(name: str) -> EngineScene:
-    return build_scene(parse_room_file((PROJECT_ROOT / "sample_rooms" / f"{name}.json").read_bytes()).room)
+    return build_scene(parse_room_file((asset_dir("sample_rooms") / f"{name}.json").read_bytes()).room)
 
 
 def main(argv: list[str] | None = None) -> int:
@@ -250,13 +251,13 @@ def main(argv: list[str] | None = None) -> int:
             + (f"{r['brute_ms']:>10.0f}{r['speedup']:>8.1f}x{r['rms_vs_brute']:>9.2%}" if "brute_ms" in r else "")
         )
     if not args.no_planner:
-        from app.planner import PlanOptions, plan
+        from app.service.planner import PlanOptions, plan
 
         for name, types in (
             ("hobby-tent-peppers", ("bararray-4x0.6", "panel-0.6")),
             ("basement-two-benches", ("panel-0.6", "bararray-6x1.0")),
         ):
-            rf = parse_room_file((PROJECT_ROOT / "sample_rooms" / f"{name}.json").read_bytes())
+            rf = parse_room_file((asset_dir("sample_rooms") / f"{name}.json").read_bytes())
             runs = []
             for _ in range(3):
                 clear_all_caches()  # every run starts cold: no footprint from an earlier run is reused

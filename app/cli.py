@@ -8,7 +8,7 @@ import sys
 from pathlib import Path
 
 from app import __version__
-from app.roomfile import RoomFileError, parse_room_file
+from app.room.roomfile import RoomFileError, parse_room_file
 
 
 def _serve(args) -> int:
@@ -58,8 +58,8 @@ def _fmt(v, digits=1):
 
 
 def _report(args) -> int:
-    from app.analysis import analyse
-    from app.web import grid_csv
+    from app.service.analysis import analyse
+    from app.service.exports import grid_csv
 
     try:
         rf = _load(args.file)

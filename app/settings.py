@@ -7,8 +7,9 @@ from pathlib import Path
 
 from platformdirs import user_data_dir
 
+from app.assets import asset_dir
+
 LOCAL_HOSTS = frozenset({"127.0.0.1", "localhost", "::1", "[::1]"})
-PROJECT_ROOT = Path(__file__).resolve().parent.parent
 # Debian's chromium on a machine with no network and no GPU (browser tests and the benchmark).
 CHROMIUM_FLAGS = (
     "--no-sandbox",
@@ -30,7 +31,7 @@ class Settings:
     data_dir: Path = field(default_factory=default_data_dir)
     host: str = "127.0.0.1"
     port: int = 8000
-    samples_dir: Path | None = PROJECT_ROOT / "sample_rooms"
+    samples_dir: Path | None = field(default_factory=lambda: asset_dir("sample_rooms"))
     seed_samples: bool = True
     extra_allowed_hosts: frozenset[str] = frozenset()
 

@@ -5,9 +5,9 @@ import copy
 import pytest
 from numpy.testing import assert_allclose
 
-from app.analysis import analyse
-from app.library import crop_library
-from app.roomfile import parse_room_file, to_json_bytes
+from app.room.library import crop_library
+from app.room.roomfile import parse_room_file, to_json_bytes
+from app.service.analysis import analyse
 from tests.conftest import sample_doc
 
 
@@ -147,7 +147,7 @@ def test_overloaded_circuit_warns():
     [("photoperiod_h", -1), ("photoperiod_h", 25), ("electricity_price_per_kwh", -0.1), ("supply_voltage_v", 0)],
 )
 def test_bad_schedule_refused(field, value):
-    from app.roomfile import RoomFileError
+    from app.room.roomfile import RoomFileError
 
     doc = copy.deepcopy(sample_doc("hobby-tent-peppers"))
     doc["room"]["schedule"][field] = value
@@ -157,7 +157,7 @@ def test_bad_schedule_refused(field, value):
 
 
 def test_regions_compare_centre_and_edge():
-    from app.analysis import Region
+    from app.service.analysis import Region
 
     doc = sample_doc("basement-two-benches")
     r = run(doc, regions=(Region("centre", 0.5, 1.5, 0.5, 0.6), Region("front end", 0.3, 0.3, 0.9, 0.2)))

@@ -7,9 +7,9 @@ from numpy.testing import assert_allclose
 from app.engine.compute import compute_scene
 from app.engine.distributions import lambertian
 from app.engine.scene import Emitter, Enclosure, Grid
-from app.models import FixtureType
-from app.photometry import MAX_FILE_BYTES, PhotometryError, fixture_type_from, parse_ies, parse_ldt
-from app.scene_builder import emitter_for
+from app.room.models import FixtureType
+from app.service.photometry import MAX_FILE_BYTES, PhotometryError, fixture_type_from, parse_ies, parse_ldt
+from app.service.scene_builder import emitter_for
 
 I0 = 1000.0  # candela at nadir of a Lambertian luminaire: its flux is exactly π·I0 (Lambert)
 

@@ -5,13 +5,22 @@ import threading
 import numpy as np
 import pytest
 
-from app.analysis import analyse
 from app.engine.compute import compute_scene
 from app.engine.scene import Grid
-from app.models import Crop, CropStage, RoomFile
-from app.planner import DARK_ALLOWANCE, Cancelled, JobBoard, PlanOptions, check_setup, curves, meets_target, plan
-from app.roomfile import consistency_problems, parse_room_file, to_json_bytes
-from app.scene_builder import build_scene
+from app.room.models import Crop, CropStage, RoomFile
+from app.room.roomfile import consistency_problems, parse_room_file, to_json_bytes
+from app.service.analysis import analyse
+from app.service.planner import (
+    DARK_ALLOWANCE,
+    Cancelled,
+    JobBoard,
+    PlanOptions,
+    check_setup,
+    curves,
+    meets_target,
+    plan,
+)
+from app.service.scene_builder import build_scene
 from tests.conftest import sample_doc
 
 

@@ -5,8 +5,8 @@ import json
 
 import pytest
 
-from app import limits
-from app.roomfile import RoomFileError, parse_room_file
+from app.room import limits
+from app.room.roomfile import RoomFileError, parse_room_file
 from tests.conftest import SAMPLES, sample_doc
 
 
@@ -65,7 +65,7 @@ def test_nan_refused_by_name(tent_doc):
 
 
 def test_nan_value_refused_after_decoding(tent_doc):
-    from app.models import RoomFile
+    from app.room.models import RoomFile
 
     tent_doc["room"]["fixtures"][0]["x_m"] = float("nan")
     with pytest.raises(Exception, match="finite"):

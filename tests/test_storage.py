@@ -7,9 +7,9 @@ import pytest
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
-from app.models import RoomFile
-from app.roomfile import dump_room_file, parse_room_file, to_json_bytes
-from app.storage import RoomNotFound, RoomStore, StaleRevision, slugify
+from app.room.models import RoomFile
+from app.room.roomfile import dump_room_file, parse_room_file, to_json_bytes
+from app.room.storage import RoomNotFound, RoomStore, StaleRevision, slugify
 from tests.conftest import sample_doc
 
 

@@ -5,8 +5,8 @@ from numpy.testing import assert_allclose
 
 from app.engine.budget import photon_budget
 from app.engine.compute import compute_scene
-from app.roomfile import parse_room_file
-from app.scene_builder import build_scene
+from app.room.roomfile import parse_room_file
+from app.service.scene_builder import build_scene
 from tests.conftest import SAMPLES
 
 

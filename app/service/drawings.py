@@ -11,8 +11,8 @@ from typing import Any
 
 import numpy as np
 
-from app.models import Room
-from app.units import format_length
+from app.room.models import Room
+from app.room.units import format_length
 
 # Viridis anchor colours (matplotlib's perceptually uniform map, sampled every 1/8).
 _VIRIDIS = np.array(

@@ -6,12 +6,12 @@ import datetime as dt
 from typing import Any
 
 from app import __version__
-from app.analysis import zone_below
-from app.drawings import heatmap_svg, plan_svg
-from app.library import crops_for, fixture_library
-from app.models import WALL_FINISHES, RoomFile
-from app.roomfile import dump_room_file
-from app.storage import RoomStore
+from app.room.library import crops_for, fixture_library
+from app.room.models import WALL_FINISHES, RoomFile
+from app.room.roomfile import dump_room_file
+from app.room.storage import RoomStore
+from app.service.analysis import zone_below
+from app.service.drawings import heatmap_svg, plan_svg
 
 
 def room_list(store: RoomStore) -> dict[str, Any]:

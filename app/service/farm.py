@@ -2,8 +2,8 @@
 
 from __future__ import annotations
 
-from app.library import fixture_library
-from app.models import WALL_FINISHES, CanopyZone, Circuit, Fixture, Obstacle, Room, RoomFile, Schedule
+from app.room.library import fixture_library
+from app.room.models import WALL_FINISHES, CanopyZone, Circuit, Fixture, Obstacle, Room, RoomFile, Schedule
 
 
 def vertical_farm(

@@ -8,7 +8,7 @@ from dataclasses import dataclass
 
 from app.engine import distributions as dist
 from app.engine.scene import Box, Emitter, Enclosure, Grid
-from app.models import Beam, CanopyZone, FixtureType, Room
+from app.room.models import Beam, CanopyZone, FixtureType, Room
 
 
 @dataclass(frozen=True)

@@ -4,7 +4,7 @@ from __future__ import annotations
 
 import json
 
-from app import limits
+from app.room import limits
 
 
 def _json_response(status: int, error: str, message: str):

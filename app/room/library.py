@@ -6,7 +6,7 @@ import json
 from functools import cache
 from importlib import resources
 
-from app.models import Crop, FixtureType, RoomFile
+from app.room.models import Crop, FixtureType, RoomFile
 
 
 def _load(name: str) -> dict:

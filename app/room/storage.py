@@ -16,8 +16,8 @@ import unicodedata
 from dataclasses import dataclass
 from pathlib import Path
 
-from app.models import RoomFile
-from app.roomfile import RoomFileError, dump_room_file, parse_room_file, to_json_bytes
+from app.room.models import RoomFile
+from app.room.roomfile import RoomFileError, dump_room_file, parse_room_file, to_json_bytes
 
 SUFFIX = ".json"
 PREV_SUFFIX = ".prev.json"

@@ -1,7 +1,7 @@
 """From a room file to the one analysis structure that the editor, the sheet, the API and the CLI show.
 
 This is the service layer: it converts models to engine inputs
-(:mod:`app.scene_builder`), calls the engine, and turns arrays into plain data.
+(:mod:`app.service.scene_builder`), calls the engine, and turns arrays into plain data.
 """
 
 from __future__ import annotations
@@ -17,9 +17,9 @@ from app.engine import electrical as elec
 from app.engine import metrics as mx
 from app.engine.budget import photon_budget
 from app.engine.compute import compute_scene
-from app.library import crops_for
-from app.models import CanopyZone, Crop, Fixture, Room, RoomFile
-from app.scene_builder import build_scene
+from app.room.library import crops_for
+from app.room.models import CanopyZone, Crop, Fixture, Room, RoomFile
+from app.service.scene_builder import build_scene
 
 UNIFORMITY_NOTE_BELOW = 0.7  # Leafcast's own prompt, no source: no horticultural pass mark is published
 DEFAULT_MIN_DARK_H = 4.0  # common practice, no source (4-6 h for most crops)

@@ -2,11 +2,11 @@
 
 Everything is stored in SI units: metres, µmol/s, watts, hours. The file records
 which display units the grower prefers; conversion happens only on screen
-(see :mod:`app.units`).
+(see :mod:`app.room.units`).
 
 Types and ranges are checked here; checks that need the whole room (a fixture
 outside the room, an unknown fixture type, duplicate ids) live in
-:mod:`app.roomfile`, which reports every problem with its field path.
+:mod:`app.room.roomfile`, which reports every problem with its field path.
 """
 
 from __future__ import annotations
@@ -15,7 +15,7 @@ from typing import Annotated, Literal
 
 from pydantic import BaseModel, ConfigDict, Field, model_validator
 
-from app import limits
+from app.room import limits
 
 FORMAT_NAME = "leafcast-room"
 FORMAT_VERSION = 1

@@ -5,7 +5,7 @@ A room file is one JSON document: ``{"format": "leafcast-room", "version": 1,
 the room uses embedded, so it opens on another machine with nothing else.
 
 :func:`parse_room_file` turns bytes or a decoded object into a
-:class:`~app.models.RoomFile` or raises :class:`RoomFileError` listing every
+:class:`~app.room.models.RoomFile` or raises :class:`RoomFileError` listing every
 problem with its field path (``room.fixtures[2].dimming_pct``) and reason.
 """
 
@@ -20,9 +20,9 @@ from typing import Any
 
 from pydantic import ValidationError
 
-from app import limits
-from app.library import crops_for
-from app.models import FORMAT_NAME, FORMAT_VERSION, Room, RoomFile
+from app.room import limits
+from app.room.library import crops_for
+from app.room.models import FORMAT_NAME, FORMAT_VERSION, Room, RoomFile
 
 _EDGE_TOLERANCE_M = 0.001  # a fixture's edge may touch a wall
 

@@ -30,13 +30,13 @@ from typing import Any
 
 import numpy as np
 
-from app.analysis import analyse, zone_photoperiod_h
 from app.engine.compute import compute_scene, covering_height_m
 from app.engine.metrics import area_weighted_stats, ppfd_for_dli, value_at_area_share
-from app.library import crops_for, fixture_library
-from app.models import CanopyZone, Fixture, FixtureType, Room, RoomFile
-from app.roomfile import consistency_problems, fixture_half_extent_m
-from app.scene_builder import build_scene, emitter_for, room_boxes, zone_grid
+from app.room.library import crops_for, fixture_library
+from app.room.models import CanopyZone, Fixture, FixtureType, Room, RoomFile
+from app.room.roomfile import consistency_problems, fixture_half_extent_m
+from app.service.analysis import analyse, zone_photoperiod_h
+from app.service.scene_builder import build_scene, emitter_for, room_boxes, zone_grid
 
 DARK_ALLOWANCE = 0.10  # share of a zone allowed below the band (Leafcast default, no source)
 MIN_DIMMING = 0.10

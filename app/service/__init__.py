@@ -1,0 +1,1 @@
+"""Services: room models -> engine inputs, engine results -> typed analysis; advice, planner, drawings, exports."""

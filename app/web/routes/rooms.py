@@ -1,0 +1,118 @@
+"""Rooms: list, create, import, read, save (revision-checked), delete, download."""
+
+from __future__ import annotations
+
+from typing import Any
+
+from fastapi import APIRouter, Request
+from fastapi.responses import Response
+from pydantic import BaseModel
+
+from app.room.roomfile import dump_room_file, to_json_bytes
+from app.room.storage import RoomNotFound, StaleRevision
+from app.web.bodies import ROOM_BODY, room_from_body
+from app.web.deps import load_room, store_of
+from app.web.errors import ERRORS, ApiError, not_found
+
+router = APIRouter(prefix="/api/rooms", tags=["rooms"])
+
+
+class RoomSummaryOut(BaseModel):
+    id: str
+    name: str
+    revision: int
+    fixtures: int
+    zones: int
+
+
+class SavedOut(BaseModel):
+    id: str
+    revision: int
+    name: str
+
+
+@router.get("", response_model=list[RoomSummaryOut])
+def list_rooms(request: Request):
+    return [s.__dict__ for s in store_of(request).list()]
+
+
+@router.post(
+    "",
+    status_code=201,
+    response_model=SavedOut,
+    responses=ERRORS,
+    openapi_extra=ROOM_BODY,
+    summary="Create a room from a room file",
+)
+async def create_room(request: Request):
+    rf = await room_from_body(request)
+    room_id, stored = store_of(request).create(rf)
+    return {"id": room_id, "revision": stored.revision, "name": stored.room.name}
+
+
+@router.post(
+    "/import",
+    status_code=201,
+    response_model=SavedOut,
+    responses=ERRORS,
+    openapi_extra=ROOM_BODY,
+    summary="Import a room file; a colliding name gets a new one",
+)
+async def import_room(request: Request):
+    rf = await room_from_body(request)
+    store = store_of(request)
+    names = {s.name for s in store.list()}
+    name, n = rf.room.name, 2
+    while name in names:
+        name, n = f"{rf.room.name} ({n})", n + 1
+    rf = rf.model_copy(update={"room": rf.room.model_copy(update={"name": name[:120]})})
+    room_id, stored = store.create(rf)
+    return {"id": room_id, "revision": stored.revision, "name": stored.room.name}
+
+
+@router.get("/{room_id}", responses=ERRORS, summary="Read a room file")
+def read_room(request: Request, room_id: str) -> dict[str, Any]:
+    return dump_room_file(load_room(store_of(request), room_id))
+
+
+@router.put(
+    "/{room_id}",
+    response_model=SavedOut,
+    responses=ERRORS,
+    openapi_extra=ROOM_BODY,
+    summary="Save a room; refused with 409 if its revision is stale",
+)
+async def save_room(room_id: str, request: Request):
+    store = store_of(request)
+    load_room(store, room_id)
+    rf = await room_from_body(request)
+    try:
+        stored = store.save(room_id, rf)
+    except StaleRevision as exc:
+        raise ApiError(
+            409,
+            "stale_revision",
+            f"This room was changed elsewhere (now revision {exc.current}); your change was based on "
+            f"revision {exc.given} and was not saved.",
+            current_revision=exc.current,
+        ) from exc
+    return {"id": room_id, "revision": stored.revision, "name": stored.room.name}
+
+
+@router.delete("/{room_id}", status_code=204, responses=ERRORS)
+def delete_room(request: Request, room_id: str):
+    try:
+        store_of(request).delete(room_id)
+    except RoomNotFound as exc:
+        raise not_found(f"no room with id '{room_id}'") from exc
+    return Response(status_code=204)
+
+
+@router.get("/{room_id}/file", responses=ERRORS, summary="Download the room file")
+def export_room(request: Request, room_id: str):
+    rf = load_room(store_of(request), room_id)
+    return Response(
+        to_json_bytes(dump_room_file(rf)),
+        media_type="application/json",
+        headers={"Content-Disposition": f'attachment; filename="{room_id}.leafcast.json"'},
+    )
