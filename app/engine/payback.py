@@ -82,7 +82,7 @@ def payback(
         if turned.size:
             k = int(turned[0])
             before = -purchase_cost if k == 0 else balance[k - 1]
-            years = k + (-before) / flows[k]
+            years = float(k + (-before) / flows[k])
     return {
         "years": years,
         "simple_years": purchase_cost / saving if saving > 0 else None,

@@ -23,6 +23,7 @@ from pydantic import ValidationError
 from app.room import limits
 from app.room.library import crops_for
 from app.room.models import FORMAT_NAME, FORMAT_VERSION, Room, RoomFile
+from app.room.year_checks import year_problems
 
 _EDGE_TOLERANCE_M = 0.001  # a fixture's edge may touch a wall
 
@@ -225,6 +226,7 @@ def consistency_problems(room_file: RoomFile) -> list[Problem]:
             ):
                 p.append(Problem(at, f"fixture '{f.id}' is inside obstacle '{o.id}'"))
 
+    p += [Problem(field, reason) for field, reason in year_problems(room_file)]
     points = grid_point_count(room)
     if points > limits.MAX_GRID_POINTS:
         p.append(

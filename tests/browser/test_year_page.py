@@ -1,0 +1,46 @@
+"""The cycle-and-year page in Chromium: charts drawn, a step edited and saved, the change undone."""
+
+import pytest
+
+from tests.browser.helpers import api, fresh_room
+
+pytestmark = pytest.mark.browser
+
+
+def test_year_page_edit_save_and_undo(live_server, page, artifacts):
+    room = fresh_room(live_server, sample="greenhouse-lettuce-bench", name="Year page test bench")
+    before = api(live_server, f"/api/rooms/{room}")
+    page.goto(f"{live_server}/rooms/{room}/year")
+    for plot in ("cycle-plot-0", "gh-plot-0", "gh-energy-0", "tariff-plot", "payback-plot"):
+        page.wait_for_selector(f"#{plot} .main-svg", timeout=30000)
+    page.screenshot(path=str(artifacts / "year.png"), full_page=True)
+    assert "Pays back in" in page.locator("#payback-table").inner_text()
+    # Metric room: heights are typed in cm. Lower the last step's dimming and save.
+    last = page.locator("#cycle-steps-0 tr[data-step='2']")
+    assert last.locator("[name=fixture_height_m]").input_value() == "170"
+    last.locator("[name=dimming_pct]").fill("55")
+    page.click("#cycle-steps-0 [data-save-cycle]")
+    page.wait_for_url(f"**/rooms/{room}/year", wait_until="load")
+    page.wait_for_selector("#cycle-plot-0 .main-svg", timeout=30000)
+    saved = api(live_server, f"/api/rooms/{room}")
+    assert saved["revision"] == before["revision"] + 1
+    assert saved["room"]["zones"][0]["cycle"]["steps"][2]["dimming_pct"] == 55
+    # A bad value is refused in the page with the field named, and nothing is saved.
+    page.locator("#cycle-steps-0 tr[data-step='1'] [name=canopy_height_m]").fill("tall")
+    page.click("#cycle-steps-0 [data-save-cycle]")
+    page.wait_for_selector("#banner:not([hidden])")
+    assert "step 2 canopy height" in page.locator("#banner").inner_text()
+    assert api(live_server, f"/api/rooms/{room}")["revision"] == saved["revision"]
+    page.reload()
+    page.wait_for_selector("#undo:not([disabled])")
+    page.click("#undo")
+    page.wait_for_function(
+        "r => fetch(location.pathname.replace('/rooms/', '/api/rooms/').replace('/year', ''))"
+        ".then(x => x.json()).then(d => d.revision > r)",
+        arg=saved["revision"],
+        timeout=30000,
+    )
+    page.wait_for_load_state("load")
+    restored = api(live_server, f"/api/rooms/{room}")
+    assert restored["room"]["zones"][0]["cycle"] == before["room"]["zones"][0]["cycle"]
+    assert page.errors == []
