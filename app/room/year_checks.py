@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+from app.room import layout
 from app.room.library import crops_for, fixture_library
 from app.room.models import CanopyZone, Room, RoomFile
 
@@ -9,20 +10,8 @@ MIN_CLEARANCE_M = 0.01  # the same 1 cm the fixture checks use
 
 
 def hung_over(room: Room, zone: CanopyZone) -> list:
-    """Fixtures that light this zone: the zone is the highest canopy below them whose rectangle holds their
-    centre (so on a rack, a tier's own fixtures, not those of the tiers above)."""
-    out = []
-    for f in room.fixtures:
-        below = [
-            z
-            for z in room.zones
-            if z.canopy_height_m < f.hanging_height_m
-            and z.x_m <= f.x_m <= z.x_m + z.width_m
-            and z.y_m <= f.y_m <= z.y_m + z.length_m
-        ]
-        if below and max(below, key=lambda z: z.canopy_height_m).id == zone.id:
-            out.append(f)
-    return out
+    """Fixtures that light this zone (the room's one layout rule), the ones its cycle moves."""
+    return layout.fixtures_lighting(room.zones, room.fixtures, zone.id)
 
 
 def _cycle_problems(room_file: RoomFile, i: int, zone: CanopyZone) -> list[tuple[str, str]]:

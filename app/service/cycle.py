@@ -16,6 +16,7 @@ import numpy as np
 
 from app.engine import cycle as cy
 from app.engine import metrics as mx
+from app.room import layout
 from app.room.library import crops_for
 from app.room.models import CanopyZone, Crop, RoomFile
 from app.service.analysis import DEFAULT_MIN_DARK_H, LONG_DAY_NIGHT_H, SHORT_DAY_NIGHT_H
@@ -160,7 +161,7 @@ def _height_fix(cache: ZoneLightCache, week, band, target):
         return None
     canopy, hours = week["canopy_height_m"], week["photoperiod_h"]
     direction = -1.0 if "below" in week["status"] else 1.0
-    ceiling = cache.room_file.room.height_m
+    ceiling = layout.highest_hanging_m(cache.room_file.room, cache.zone)  # under a shelf over the zone, or the ceiling
     for k in range(1, MAX_HEIGHT_TRIES + 1):
         h_fix = round(start + direction * k * HEIGHT_STEP_M, 3)
         if h_fix < canopy + MIN_FIX_CLEARANCE_M or h_fix > ceiling:
