@@ -203,3 +203,21 @@ def test_dli_worked_example_on_the_page_data(bench_doc):
     rf = parse_room_file(bench_doc)
     for w in cycle_report(rf, rf.room.zones[0])["weeks"]:
         assert_allclose(w["dli_avg"], float(mx.dli_mol_m2_d(w["ppfd_avg"], w["photoperiod_h"])), atol=0.01)
+
+
+def test_schedule_table_for_the_sheet(bench_doc):
+    from app.service.cycle import schedule_table
+
+    rf = parse_room_file(bench_doc)
+    t = schedule_table(cycle_report(rf, rf.room.zones[0]), "imperial")
+    assert len(t["rows"]) == 7 and len(t["columns"]) == len(t["rows"][0])
+    # Week 6 hangs the fixtures at 1.7 m = 66.9 in → 5′ 7″ to the half inch.
+    assert t["rows"][5][4] == "5′ 7″"
+
+
+def test_year_page_of_a_room_without_plans(client):
+    doc = sample_doc("hobby-tent-peppers")  # a 0.1 room file: none of the new fields
+    room_id = client.post("/api/rooms", json=doc).json()["id"]
+    data = client.get(f"/rooms/{room_id}/year?format=json").json()
+    assert data["cycles"] == [] and data["greenhouses"] == [] and data["tariff"] is None and data["payback"] is None
+    assert client.get(f"/rooms/{room_id}/year").status_code == 200

@@ -229,3 +229,31 @@ def cycle_report(room_file: RoomFile, zone: CanopyZone) -> dict[str, Any]:
         "analyses": cache.analyses,
         "fixtures": [f.id for f in cache.own],
     }
+
+
+def schedule_table(report: dict[str, Any], display_units: str) -> dict[str, Any]:
+    """The cycle as a plain table for the layout sheet: one row per week, values formatted in the room's units."""
+    from app.room.units import format_length
+
+    def length(m):
+        return "as hung" if m is None else format_length(m, display_units)
+
+    rows = [
+        [
+            str(w["week"]),
+            w["stage"],
+            f"{w['photoperiod_h']:g} h",
+            length(w["canopy_height_m"]),
+            length(w["fixture_height_m"]),
+            "as set" if w["dimming_pct"] is None else f"{w['dimming_pct']:g} %",
+            f"{w['dli_avg']:.1f}",
+            f"{w['band']['dli_min']:g}–{w['band']['dli_max']:g}",
+            "ok" if not w["status"] else ", ".join(w["status"]),
+        ]
+        for w in report["weeks"]
+    ]
+    return {
+        "title": f"{report['zone_name']}: grow cycle",
+        "columns": ["Week", "Stage", "Light", "Canopy", "Fixtures", "Dimming", "DLI", "Band", "Check"],
+        "rows": rows,
+    }

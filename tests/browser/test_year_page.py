@@ -44,3 +44,17 @@ def test_year_page_edit_save_and_undo(live_server, page, artifacts):
     restored = api(live_server, f"/api/rooms/{room}")
     assert restored["room"]["zones"][0]["cycle"] == before["room"]["zones"][0]["cycle"]
     assert page.errors == []
+
+
+def test_year_page_adds_a_tariff_and_a_cycle(live_server, page):
+    room = fresh_room(live_server, name="Year page tent")
+    page.goto(f"{live_server}/rooms/{room}/year")
+    page.click("#tariff-new")
+    page.wait_for_selector("#tariff-plot .main-svg", timeout=30000)
+    assert "Saving for the room" in page.locator("#tariff-table").inner_text()
+    page.click("[data-new-cycle='tent-floor']")
+    page.wait_for_selector("#cycle-plot-0 .main-svg", timeout=30000)
+    doc = api(live_server, f"/api/rooms/{room}")
+    assert doc["room"]["schedule"]["tariff"]["windows"][0]["peak"] is True
+    assert doc["room"]["zones"][0]["cycle"]["weeks"] == 6
+    assert page.errors == []
