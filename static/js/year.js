@@ -104,6 +104,20 @@
       height: `hang the fixtures at ${len(f.fixture_height_m)} and dim to ${fmt(f.dimming_pct)} %` }[f.kind];
     return `${what} → DLI ${fmt(f.verified.dli_avg, 1)}, peak ${fmt(f.verified.ppfd_max)} µmol m⁻² s⁻¹ (computed again)`;
   }
+  // The schedule as one step per run of identical weeks (no ramps), each fixed week taking its verified fix:
+  // every week keeps exactly the settings it was computed with.
+  function stepsWithFixes(weeks) {
+    const steps = [];
+    for (const w of weeks) {
+      const f = w.fix;
+      const s = { week: w.week, stage: w.stage, photoperiod_h: f ? f.photoperiod_h : w.photoperiod_h, canopy_height_m: w.canopy_height_m,
+        fixture_height_m: f ? f.fixture_height_m : w.fixture_height_m, dimming_pct: f ? f.dimming_pct : w.dimming_pct, ramp: false };
+      const last = steps[steps.length - 1];
+      const same = last && ["stage", "photoperiod_h", "canopy_height_m", "fixture_height_m", "dimming_pct"].every((k) => last[k] === s[k]);
+      if (!same) steps.push(s);
+    }
+    return steps;
+  }
   function drawCycle(c, i) {
     if (c.problem) return;
     const zone = zoneOf(c.zone_id);
@@ -147,6 +161,12 @@
         <td>${len(w.canopy_height_m)}</td><td>${len(w.fixture_height_m)}</td><td>${w.dimming_pct === null ? "as set" : fmt(w.dimming_pct) + " %"}</td>
         <td>${fmt(w.ppfd_avg)} / ${fmt(w.ppfd_max)}</td><td>${fmt(w.dli_avg, 1)} (${fmt(w.dli_min, 1)})</td><td>${w.band.dli_min}–${w.band.dli_max}</td>
         <td>${w.status.length ? `${w.status.map((s) => ({ below: "below the band", above: "above the band", stress: `above ${w.band.ppfd_stress} µmol m⁻² s⁻¹` }[s])).join(", ")}: ${esc(fixText(w.fix))}` : "in the band"}</td></tr>`))}`;
+    if (c.weeks.some((w) => w.fix)) {
+      $(`cycle-weeks-${i}`).insertAdjacentHTML("beforeend", `<button type="button" data-apply-fixes>Apply every fix to the schedule</button>`);
+      $(`cycle-weeks-${i}`).querySelector("[data-apply-fixes]").addEventListener("click", () => save((d) => {
+        d.room.zones.find((q) => q.id === zone.id).cycle.steps = stepsWithFixes(c.weeks);
+      }, `the fixes for ${zone.name}`));
+    }
     const t = c.totals;
     $(`cycle-totals-${i}`).innerHTML = `<h4>Over the cycle (${t.weeks} weeks, ${t.harvests} harvest${t.harvests === 1 ? "" : "s"})</h4>
       <p>${fmt(t.kwh, 1)} kWh · ${fmt(t.cost, 2)} ${esc(cur)} (mean ${fmt(t.mean_price_per_kwh, 3)} ${esc(cur)}/kWh) · heat ${fmt(t.heat_kwh, 1)} kWh = ${fmt(t.heat_btu / 1e6, 2)} million BTU to remove<br>

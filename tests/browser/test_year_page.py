@@ -58,3 +58,27 @@ def test_year_page_adds_a_tariff_and_a_cycle(live_server, page):
     assert doc["room"]["schedule"]["tariff"]["windows"][0]["peak"] is True
     assert doc["room"]["zones"][0]["cycle"]["weeks"] == 6
     assert page.errors == []
+
+
+def test_apply_every_fix_puts_every_week_in_the_band(live_server, page):
+    room = fresh_room(live_server, sample="greenhouse-lettuce-bench", name="Year page fixes")
+    page.goto(f"{live_server}/rooms/{room}/year?format=json")
+    before = api(live_server, f"/rooms/{room}/year?format=json")["cycles"][0]
+    assert before["flagged"] > 0 and before["fixed"] == before["flagged"]
+    page.goto(f"{live_server}/rooms/{room}/year")
+    page.click("[data-apply-fixes]")
+    page.wait_for_function(
+        "() => !document.querySelector('[data-apply-fixes]') && document.querySelector('#cycle-plot-0 .main-svg')",
+        timeout=30000,
+    )
+    after = api(live_server, f"/rooms/{room}/year?format=json")["cycles"][0]
+    assert after["flagged"] == 0
+    # Weeks that were in the band keep their settings.
+    for a, b in zip(before["weeks"], after["weeks"], strict=True):
+        if not a["status"]:
+            assert (a["dimming_pct"], a["photoperiod_h"], a["fixture_height_m"]) == (
+                b["dimming_pct"],
+                b["photoperiod_h"],
+                b["fixture_height_m"],
+            )
+    assert page.errors == []
