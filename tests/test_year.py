@@ -50,10 +50,11 @@ def test_dimming_scales_the_zone_light_linearly(bench_doc):
 
 
 def test_ramped_week_settings(bench_doc):
-    # Steps at weeks 1, 3 (ramp) and 6: dimming 60 → 75 over weeks 3-5 in steps of 5; canopy 0.92 → 1.05 m.
+    # Steps at weeks 1, 3 (ramp) and 6: dimming 40 → 65 over weeks 3-5 (48.3, 56.7 to whole percent); canopy
+    # 0.92 → 1.05 m; the cycle starts in November, so weeks 1-4 get November's sun and weeks 5-7 December's.
     rf = parse_room_file(bench_doc)
     s = week_settings(rf.room.zones[0])
-    assert s["dimming_pct"] == [40, 40, 60, 65, 70, 75, 75]
+    assert s["dimming_pct"] == [25, 25, 40, 48, 57, 65, 65]
     assert_allclose(s["canopy_height_m"], [0.9, 0.9, 0.92, 0.963, 1.007, 1.05, 1.05], atol=1e-9)
     assert s["stage"][:2] == ["propagation", "propagation"] and s["stage"][2] == "vegetative"
 
@@ -72,9 +73,10 @@ def test_every_offered_fix_meets_the_band_when_recomputed_independently(bench_do
         )
         z = analyse(parse_room_file(d))["zones"][0]
         band = w["band"]
-        assert band["dli_min"] <= z["dli"]["avg"] <= band["dli_max"], (w["week"], z["dli"]["avg"])
+        total = z["dli"]["avg"] + w["dli_natural"]  # the fixtures' DLI from the analysis plus the week's sun
+        assert band["dli_min"] <= total <= band["dli_max"], (w["week"], total)
         assert z["ppfd"]["max"] <= band["ppfd_stress"]
-        assert_allclose(z["dli"]["avg"], fix["verified"]["dli_avg"], atol=0.02)
+        assert_allclose(total, fix["verified"]["dli_avg"], atol=0.02)
 
 
 def test_cycle_totals_by_hand(bench_doc):
@@ -199,10 +201,11 @@ def test_year_page_and_api(client, bench_doc):
 
 
 def test_dli_worked_example_on_the_page_data(bench_doc):
-    # Every week's DLI is its average PPFD × photoperiod × 3600 / 10⁶ (Faust & Logan 2018).
+    # Every week's DLI is its average PPFD × photoperiod × 3600 / 10⁶ (Faust & Logan 2018), plus the sun's.
     rf = parse_room_file(bench_doc)
     for w in cycle_report(rf, rf.room.zones[0])["weeks"]:
-        assert_allclose(w["dli_avg"], float(mx.dli_mol_m2_d(w["ppfd_avg"], w["photoperiod_h"])), atol=0.01)
+        lights = float(mx.dli_mol_m2_d(w["ppfd_avg"], w["photoperiod_h"]))
+        assert_allclose(w["dli_avg"], lights + w["dli_natural"], atol=0.01)
 
 
 def test_schedule_table_for_the_sheet(bench_doc):
@@ -221,3 +224,40 @@ def test_year_page_of_a_room_without_plans(client):
     data = client.get(f"/rooms/{room_id}/year?format=json").json()
     assert data["cycles"] == [] and data["greenhouses"] == [] and data["tariff"] is None and data["payback"] is None
     assert client.get(f"/rooms/{room_id}/year").status_code == 200
+
+
+def test_greenhouse_cycle_adds_the_sun_of_each_week(bench_doc):
+    doc = copy.deepcopy(bench_doc)
+    z = doc["room"]["zones"][0]
+    typed = [5, 8, 14, 22, 30, 34, 33, 27, 18, 11, 6, 4]
+    z["greenhouse"] = {"glazing": "custom", "transmission": 0.7, "outdoor_dli_by_month": typed}
+    z["cycle"] = {
+        "weeks": 6,
+        "start_month": 11,
+        "steps": [{"week": 1, "stage": "vegetative", "photoperiod_h": 12, "fixture_height_m": 1.9, "dimming_pct": 30}],
+    }
+    rf = parse_room_file(doc)
+    report = cycle_report(rf, rf.room.zones[0])
+    # Week middles at days 3.5, 10.5, ... 38.5: weeks 1-4 in November, 5-6 in December (mean month 30.44 days).
+    assert [w["dli_natural"] for w in report["weeks"]] == pytest.approx([6 * 0.7] * 4 + [4 * 0.7] * 2)
+    for w in report["weeks"]:
+        lights = float(mx.dli_mol_m2_d(w["ppfd_avg"], w["photoperiod_h"]))
+        assert_allclose(w["dli_avg"], lights + w["dli_natural"], atol=0.01)
+        assert "below" in w["status"]
+        fix = w["fix"]
+        d = _with_week(
+            doc, "bench", w["canopy_height_m"], fix["fixture_height_m"], fix["dimming_pct"], fix["photoperiod_h"]
+        )
+        got = analyse(parse_room_file(d))["zones"][0]["dli"]["avg"] + w["dli_natural"]
+        assert w["band"]["dli_min"] <= got <= w["band"]["dli_max"]
+
+
+def test_greenhouse_cycle_in_midsummer_cannot_be_fixed_by_the_lights(bench_doc):
+    doc = copy.deepcopy(bench_doc)
+    z = doc["room"]["zones"][0]
+    z["greenhouse"] = {"glazing": "custom", "transmission": 0.7, "outdoor_dli_by_month": [34.0] * 12}
+    z["cycle"] = {"weeks": 1, "start_month": 6, "steps": [{"week": 1, "stage": "vegetative", "photoperiod_h": 4}]}
+    rf = parse_room_file(doc)
+    w = cycle_report(rf, rf.room.zones[0])["weeks"][0]
+    # 34 × 0.7 = 23.8 from the sun alone, above lettuce's 12-17 band: shade, not lighting, would fix it.
+    assert "above" in w["status"] and w["fix"] is None

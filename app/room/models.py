@@ -192,6 +192,9 @@ class GrowCycle(Strict):
     weeks: int = Field(ge=1, le=MAX_CYCLE_WEEKS)
     steps: list[CycleStep] = Field(min_length=1, max_length=MAX_CYCLE_WEEKS)
     harvests: float = Field(default=1.0, gt=0, le=1000, description="Harvests the cycle yields.")
+    start_month: int | None = Field(
+        default=None, ge=1, le=12, description="Month the cycle starts; in a greenhouse zone it adds the sun's light."
+    )
 
     @model_validator(mode="after")
     def _steps_in_order(self) -> GrowCycle:

@@ -29,7 +29,8 @@ HEIGHT_STEP_M = 0.05  # fixtures are moved in 5 cm steps when dimming and hours 
 MIN_FIX_CLEARANCE_M = 0.15  # never lowered closer than this to the canopy (common practice, no source)
 MAX_HEIGHT_TRIES = 6
 ROUNDING = {"photoperiod_h": 0.25, "canopy_height_m": 0.001, "fixture_height_m": 0.001, "dimming_pct": 1.0}
-BAND_EDGE_MARGIN = 0.03  # aim 3 % inside the band so rounding does not land on its edge
+BAND_EDGE_MARGIN = 0.03
+DAYS_PER_MEAN_MONTH = 365.25 / 12  # aim 3 % inside the band so rounding does not land on its edge
 
 
 @dataclass(frozen=True)
@@ -81,14 +82,29 @@ def week_settings(zone: CanopyZone) -> dict[str, np.ndarray | list]:
     }
 
 
-def _figures(light, dimming_pct, hours: float) -> dict[str, float]:
+def natural_by_week(zone: CanopyZone) -> list[float]:
+    """Natural DLI at the bench in each week of the cycle: a greenhouse zone whose cycle has a start month
+    gets the mean of the month each week's middle falls in; every other zone gets none."""
+    c = zone.cycle
+    if zone.greenhouse is None or c.start_month is None:
+        return [0.0] * c.weeks
+    from app.service.greenhouse import natural_by_month  # it imports this module's photoperiod rule
+
+    monthly = natural_by_month(zone)["inside"]
+    mid_day = np.arange(c.weeks) * cy.DAYS_PER_WEEK + 0.5 * cy.DAYS_PER_WEEK
+    month = (c.start_month - 1 + np.floor(mid_day / DAYS_PER_MEAN_MONTH).astype(int)) % 12
+    return [round(float(monthly[m]), 3) for m in month]
+
+
+def _figures(light, dimming_pct, hours: float, natural_dli: float = 0.0) -> dict[str, float]:
+    """PPFD of the fixtures, and the DLI the canopy gets: the fixtures' plus the sun's at the bench (greenhouse)."""
     s = light.stats(dimming_pct)
     return {
         "ppfd_avg": s["avg"],
         "ppfd_max": s["max"],
         "ppfd_min": s["min"],
-        "dli_avg": float(mx.dli_mol_m2_d(s["avg"], hours)),
-        "dli_min": float(mx.dli_mol_m2_d(s["min"], hours)),
+        "dli_avg": float(mx.dli_mol_m2_d(s["avg"], hours)) + natural_dli,
+        "dli_min": float(mx.dli_mol_m2_d(s["min"], hours)) + natural_dli,
     }
 
 
@@ -117,8 +133,8 @@ def _dimming_for(light, hours: float, target_dli: float, stress: float) -> float
     return pct
 
 
-def _try(light, dimming, hours, band) -> dict[str, float] | None:
-    fig = _figures(light, dimming, hours)
+def _try(light, dimming, hours, band, natural_dli) -> dict[str, float] | None:
+    fig = _figures(light, dimming, hours, natural_dli)
     return fig if not _status(fig, band) else None
 
 
@@ -131,14 +147,16 @@ def find_fix(cache: ZoneLightCache, week: dict[str, Any], band: dict[str, float]
         week["photoperiod_h"],
     )
     light = cache.light(canopy, fixture_h)
+    natural = week["dli_natural"]
     low, high = band["dli_min"] * (1 + BAND_EDGE_MARGIN), band["dli_max"] * (1 - BAND_EDGE_MARGIN)
-    target = low if "below" in week["status"] else high if "above" in week["status"] else 0.5 * (low + high)
+    # What the fixtures must give: the band's target less the sun's share.
+    target = (low if "below" in week["status"] else high if "above" in week["status"] else 0.5 * (low + high)) - natural
     tries: list[tuple[str, Any, float, float | None]] = []
     pct = _dimming_for(light, hours, target, band["ppfd_stress"])
     if pct is not None:
         tries.append(("dimming", light, hours, pct))
     now = light.stats(dim)["avg"]
-    if now > 0:
+    if now > 0 and target > 0:
         h = float(mx.photoperiod_for_dli_h(target, now))
         h = (
             math.ceil(h / PHOTOPERIOD_STEP_H) * PHOTOPERIOD_STEP_H
@@ -148,10 +166,10 @@ def find_fix(cache: ZoneLightCache, week: dict[str, Any], band: dict[str, float]
         if rule.min_h <= h <= rule.max_h:
             tries.append(("photoperiod", light, h, dim))
     for kind, lt, h, d in tries:
-        fig = _try(lt, d, h, band)
+        fig = _try(lt, d, h, band, natural)
         if fig:
             return _fix(kind, h, d, lt.fixture_height_m, fig)
-    return _height_fix(cache, week, band, target)
+    return _height_fix(cache, week, band, target) if target > 0 else None
 
 
 def _height_fix(cache: ZoneLightCache, week, band, target):
@@ -170,7 +188,7 @@ def _height_fix(cache: ZoneLightCache, week, band, target):
         pct = _dimming_for(light, hours, target, band["ppfd_stress"])
         if pct is None:
             return None
-        fig = _try(light, pct, hours, band)
+        fig = _try(light, pct, hours, band, week["dli_natural"])
         if fig:
             return _fix("height", hours, pct, h_fix, fig)
     return None
@@ -191,13 +209,15 @@ def cycle_report(room_file: RoomFile, zone: CanopyZone) -> dict[str, Any]:
     crop = crops_for(room_file)[zone.crop_id]
     cache = ZoneLightCache(room_file, zone)
     settings = week_settings(zone)
+    natural = natural_by_week(zone)
     weeks_out = []
     for i in range(zone.cycle.weeks):
         w = {k: v[i] for k, v in settings.items()}
+        w["dli_natural"] = natural[i]
         st = crop.stages[w["stage"]]
         band = {"dli_min": st.dli_min, "dli_max": st.dli_max, "ppfd_stress": st.ppfd_stress_umol_m2_s}
         light = cache.light(w["canopy_height_m"], w["fixture_height_m"])
-        fig = _figures(light, w["dimming_pct"], w["photoperiod_h"])
+        fig = _figures(light, w["dimming_pct"], w["photoperiod_h"], natural[i])
         rule = photoperiod_rule(crop, w["stage"])
         w.update(week=i + 1, band=band, **{k: round(v, 2) for k, v in fig.items()})
         w["status"] = _status(fig, band)
@@ -218,12 +238,19 @@ def cycle_report(room_file: RoomFile, zone: CanopyZone) -> dict[str, Any]:
     totals = cy.cycle_totals(
         power, hours, [w["canopy_flux_umol_s"] for w in weeks_out], area, mean_price, zone.cycle.harvests
     )
+    natural_mol = sum(natural) * cy.DAYS_PER_WEEK * area  # the sun's photons at the bench, apart from the fixtures'
     return {
         "zone_id": zone.id,
         "zone_name": zone.name,
         "crop_name": crop.name,
         "weeks": weeks_out,
-        "totals": {**totals, "mean_price_per_kwh": mean_price, "harvests": zone.cycle.harvests, "area_m2": area},
+        "totals": {
+            **totals,
+            "natural_mol": natural_mol,
+            "mean_price_per_kwh": mean_price,
+            "harvests": zone.cycle.harvests,
+            "area_m2": area,
+        },
         "flagged": sum(1 for w in weeks_out if w["status"]),
         "fixed": sum(1 for w in weeks_out if w["status"] and w["fix"]),
         "analyses": cache.analyses,

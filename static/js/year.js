@@ -98,7 +98,8 @@
       };
     });
   }
-  function fixText(f) {
+  function fixText(f, w) {
+    if (!f && w.dli_natural > w.band.dli_max) return `the sun alone gives ${fmt(w.dli_natural, 1)} at the bench, above the band: shade the glazing`;
     if (!f) return "no setting of these fixtures reaches the band: add fixtures or change the plan";
     const what = { dimming: `dim to ${fmt(f.dimming_pct)} %`, photoperiod: `set the photoperiod to ${fmt(f.photoperiod_h, 2)} h`,
       height: `hang the fixtures at ${len(f.fixture_height_m)} and dim to ${fmt(f.dimming_pct)} %` }[f.kind];
@@ -129,12 +130,13 @@
       { x: wk, y: c.weeks.map((w) => w.dli_avg), mode: "lines+markers", name: "DLI average", line: { color: "#2f6d3a" } },
       { x: wk, y: c.weeks.map((w) => w.dli_min), mode: "lines", name: "DLI lowest point", line: { color: "#2f6d3a", dash: "dot" } },
       { x: flagged.map((w) => w.week), y: flagged.map((w) => w.dli_avg), mode: "markers", name: "off the band or stressed", marker: { color: "#b3261e", size: 11, symbol: "x" } },
-    ], { margin: { t: 10, r: 10, b: 40, l: 50 }, xaxis: { title: { text: "week" }, dtick: 1 }, yaxis: { title: { text: "DLI (mol m⁻² d⁻¹)" }, rangemode: "tozero" }, legend: { orientation: "h", y: -0.35 } }, PLOT);
+    ].concat(c.weeks.some((w) => w.dli_natural > 0) ? [{ x: wk, y: c.weeks.map((w) => w.dli_natural), type: "bar", name: "of which the sun", marker: { color: "rgba(143,191,106,0.6)" } }] : []), { margin: { t: 10, r: 10, b: 40, l: 50 }, xaxis: { title: { text: "week" }, dtick: 1 }, yaxis: { title: { text: "DLI (mol m⁻² d⁻¹)" }, rangemode: "tozero" }, legend: { orientation: "h", y: -0.35 } }, PLOT);
     const steps = zone.cycle.steps;
     $(`cycle-steps-${i}`).innerHTML = `<h4>Steps</h4>${table(["From week", "Stage", "Photoperiod (h)", `Canopy height (${Units.inputUnit(units)})`, `Fixture height (${Units.inputUnit(units)})`, "Dimming (%)", "Ramp", ""], steps.map((s, k) => stepRow(zone, s, k)))}
       <div class="row"><button type="button" data-add-step>Add a step</button>
       <label>Cycle length (weeks) <input name="weeks" type="number" min="1" max="104" value="${zone.cycle.weeks}"></label>
       <label>Harvests per cycle <input name="harvests" type="number" min="0.1" step="0.1" value="${zone.cycle.harvests}"></label>
+      <label>Starts in <select name="start_month"><option value="">(no month)</option>${MONTHS.map((m, k) => `<option value="${k + 1}" ${zone.cycle.start_month === k + 1 ? "selected" : ""}>${m}</option>`).join("")}</select></label>
       <button type="button" data-save-cycle>Save the cycle</button><button type="button" data-drop-cycle>Remove the cycle</button></div>`;
     const box = $(`cycle-steps-${i}`);
     box.addEventListener("click", (ev) => {
@@ -149,18 +151,19 @@
         save((d) => {
           const z = d.room.zones.find((q) => q.id === zone.id);
           z.cycle = { weeks: num(box.querySelector("[name=weeks]"), "cycle length", { min: 1, max: 104 }),
-            harvests: num(box.querySelector("[name=harvests]"), "harvests per cycle", { min: 0.001 }), steps: readSteps(box) };
+            harvests: num(box.querySelector("[name=harvests]"), "harvests per cycle", { min: 0.001 }), steps: readSteps(box),
+            start_month: box.querySelector("[name=start_month]").value ? Number(box.querySelector("[name=start_month]").value) : null };
         }, `the cycle of ${zone.name}`);
       } else if (t.dataset.dropCycle !== undefined) {
         save((d) => { d.room.zones.find((q) => q.id === zone.id).cycle = null; }, `removing the cycle of ${zone.name}`);
       }
     });
     function readSafe(b) { try { return readSteps(b); } catch (e) { return null; } }
-    $(`cycle-weeks-${i}`).innerHTML = `<h4>Weeks</h4>${table(["Week", "Stage", "Hours", "Canopy", "Fixtures", "Dimming", "PPFD avg / peak", "DLI avg (lowest)", "Band", "Check"],
+    $(`cycle-weeks-${i}`).innerHTML = `<h4>Weeks</h4>${table(["Week", "Stage", "Hours", "Canopy", "Fixtures", "Dimming", "PPFD avg / peak", "DLI avg (lowest)", "of which sun", "Band", "Check"],
       c.weeks.map((w) => `<tr class="${w.status.length ? "flag" : ""}"><td>${w.week}</td><td>${esc(w.stage)}</td><td>${fmt(w.photoperiod_h, 2)}${w.photoperiod_ok ? "" : ` ⚠ ${esc(w.photoperiod_rule.why)}`}</td>
         <td>${len(w.canopy_height_m)}</td><td>${len(w.fixture_height_m)}</td><td>${w.dimming_pct === null ? "as set" : fmt(w.dimming_pct) + " %"}</td>
-        <td>${fmt(w.ppfd_avg)} / ${fmt(w.ppfd_max)}</td><td>${fmt(w.dli_avg, 1)} (${fmt(w.dli_min, 1)})</td><td>${w.band.dli_min}–${w.band.dli_max}</td>
-        <td>${w.status.length ? `${w.status.map((s) => ({ below: "below the band", above: "above the band", stress: `above ${w.band.ppfd_stress} µmol m⁻² s⁻¹` }[s])).join(", ")}: ${esc(fixText(w.fix))}` : "in the band"}</td></tr>`))}`;
+        <td>${fmt(w.ppfd_avg)} / ${fmt(w.ppfd_max)}</td><td>${fmt(w.dli_avg, 1)} (${fmt(w.dli_min, 1)})</td><td>${w.dli_natural ? fmt(w.dli_natural, 1) : "–"}</td><td>${w.band.dli_min}–${w.band.dli_max}</td>
+        <td>${w.status.length ? `${w.status.map((s) => ({ below: "below the band", above: "above the band", stress: `above ${w.band.ppfd_stress} µmol m⁻² s⁻¹` }[s])).join(", ")}: ${esc(fixText(w.fix, w))}` : "in the band"}</td></tr>`))}`;
     if (c.weeks.some((w) => w.fix)) {
       $(`cycle-weeks-${i}`).insertAdjacentHTML("beforeend", `<button type="button" data-apply-fixes>Apply every fix to the schedule</button>`);
       $(`cycle-weeks-${i}`).querySelector("[data-apply-fixes]").addEventListener("click", () => save((d) => {
@@ -170,7 +173,7 @@
     const t = c.totals;
     $(`cycle-totals-${i}`).innerHTML = `<h4>Over the cycle (${t.weeks} weeks, ${t.harvests} harvest${t.harvests === 1 ? "" : "s"})</h4>
       <p>${fmt(t.kwh, 1)} kWh · ${fmt(t.cost, 2)} ${esc(cur)} (mean ${fmt(t.mean_price_per_kwh, 3)} ${esc(cur)}/kWh) · heat ${fmt(t.heat_kwh, 1)} kWh = ${fmt(t.heat_btu / 1e6, 2)} million BTU to remove<br>
-      ${fmt(t.canopy_mol)} mol of photons to the canopy (${fmt(perArea(t.canopy_mol_per_m2), 1)} mol per ${page.area_unit}) · ${fmt(t.cost_per_mol * 100, 2)} ${esc(cur)} per 100 mol<br>
+      ${fmt(t.canopy_mol)} mol of photons from the fixtures to the canopy (${fmt(perArea(t.canopy_mol_per_m2), 1)} mol per ${page.area_unit})${t.natural_mol ? `, and ${fmt(t.natural_mol)} mol from the sun` : ""} · ${fmt(t.cost_per_mol * 100, 2)} ${esc(cur)} per 100 mol<br>
       per harvest ${fmt(t.kwh_per_harvest, 1)} kWh, ${fmt(t.cost_per_harvest, 2)} ${esc(cur)} · per ${page.area_unit} of canopy ${fmt(perArea(t.kwh_per_m2), 2)} kWh, ${fmt(perArea(t.cost_per_m2), 2)} ${esc(cur)}</p>`;
   }
   page.cycles.forEach(drawCycle);
