@@ -14,6 +14,7 @@ def test_year_page_edit_save_and_undo(live_server, page, artifacts):
     for plot in ("cycle-plot-0", "gh-plot-0", "gh-energy-0", "tariff-plot", "payback-plot"):
         page.wait_for_selector(f"#{plot} .main-svg", timeout=30000)
     page.screenshot(path=str(artifacts / "year.png"), full_page=True)
+    page.locator("section[aria-labelledby=cycle-title]").screenshot(path=str(artifacts / "year-cycle.png"))
     assert "Pays back in" in page.locator("#payback-table").inner_text()
     # Metric room: heights are typed in cm. Lower the last step's dimming and save.
     last = page.locator("#cycle-steps-0 tr[data-step='2']")

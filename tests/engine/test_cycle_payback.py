@@ -4,6 +4,8 @@ import math
 
 import numpy as np
 import pytest
+from hypothesis import given, settings
+from hypothesis import strategies as st
 from numpy.testing import assert_allclose
 
 from app.engine import cycle, payback
@@ -96,3 +98,33 @@ def test_cost_per_mol_by_hand():
     # (1000 + 300 + 300) / (2000 + 2000) = 0.4 per mol.
     assert_allclose(payback.cost_per_mol(1000.0, [300, 300], [2000, 2000]), 0.4)
     assert payback.cost_per_mol(0.0, [1.0], [0.0]) == math.inf
+
+
+@settings(max_examples=80, deadline=None)
+@given(
+    gaps=st.lists(st.integers(1, 8), min_size=1, max_size=6),
+    values=st.lists(st.floats(0.0, 100.0), min_size=7, max_size=7),
+    ramps=st.lists(st.booleans(), min_size=7, max_size=7),
+    tail=st.integers(0, 5),
+)
+def test_week_values_stay_between_their_steps(gaps, values, ramps, tail):
+    # A held step keeps its value; a ramp moves monotonically from its value towards the next step's,
+    # reaching it exactly at the next step's first week (linear interpolation by week).
+    weeks = [1]
+    for g in gaps:
+        weeks.append(weeks[-1] + g)
+    n = len(weeks)
+    v, r = values[:n], ramps[:n]
+    n_weeks = weeks[-1] + tail
+    out = cycle.week_values(weeks, v, r, n_weeks)
+    for i, w0 in enumerate(weeks):
+        assert out[w0 - 1] == pytest.approx(v[i])
+        w1 = weeks[i + 1] if i + 1 < n else n_weeks + 1
+        seg = out[w0 - 1 : w1 - 1]
+        if r[i] and i + 1 < n:
+            lo, hi = sorted((v[i], v[i + 1]))
+            assert np.all(seg >= lo - 1e-9) and np.all(seg <= hi + 1e-9)
+            steps = np.diff(np.append(seg, v[i + 1]))
+            assert_allclose(steps, (v[i + 1] - v[i]) / (w1 - w0), atol=1e-9)
+        else:
+            assert_allclose(seg, v[i])
