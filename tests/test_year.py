@@ -4,9 +4,12 @@ tariff placement and payback, each checked against an independent re-computation
 from __future__ import annotations
 
 import copy
+import json
 
 import numpy as np
 import pytest
+from hypothesis import HealthCheck, given, settings
+from hypothesis import strategies as st
 from numpy.testing import assert_allclose
 
 from app.engine import metrics as mx
@@ -261,3 +264,56 @@ def test_greenhouse_cycle_in_midsummer_cannot_be_fixed_by_the_lights(bench_doc):
     w = cycle_report(rf, rf.room.zones[0])["weeks"][0]
     # 34 × 0.7 = 23.8 from the sun alone, above lettuce's 12-17 band: shade, not lighting, would fix it.
     assert "above" in w["status"] and w["fix"] is None
+
+
+step_st = st.fixed_dictionaries(
+    {
+        "gap": st.integers(1, 4),
+        "stage": st.sampled_from(["vegetative", "flowering"]),
+        "photoperiod_h": st.sampled_from([8.0, 12.0, 16.0, 20.0, 24.0]),
+        "canopy_height_m": st.one_of(st.none(), st.floats(0.3, 0.8)),
+        "fixture_height_m": st.one_of(st.none(), st.floats(1.2, 2.0)),
+        "dimming_pct": st.one_of(st.none(), st.integers(10, 100).map(float)),
+        "ramp": st.booleans(),
+    }
+)
+
+
+@settings(max_examples=25, deadline=None, suppress_health_check=[HealthCheck.too_slow])
+@given(
+    steps=st.lists(step_st, min_size=1, max_size=4),
+    tail=st.integers(0, 3),
+    month=st.one_of(st.none(), st.integers(1, 12)),
+)
+def test_any_valid_cycle_gives_a_page_or_a_clear_refusal(steps, tail, month):
+    doc = sample_doc("hobby-tent-peppers")
+    week, out = 1, []
+    for s in steps:
+        out.append({k: v for k, v in s.items() if k != "gap"} | {"week": week})
+        week += s["gap"]
+    doc["room"]["zones"][0]["cycle"] = {"weeks": out[-1]["week"] + tail, "steps": out, "start_month": month}
+    doc["room"]["zones"][0]["greenhouse"] = {"glazing": "film_double", "outdoor_dli_by_month": [20.0] * 12}
+    try:
+        rf = parse_room_file(doc)
+    except RoomFileError as err:
+        assert all(p.field.startswith("room.zones[0].cycle") for p in err.problems), err.problems
+        return
+    view = year_view("t", rf)
+    json.dumps(view, allow_nan=False)
+    report = view["cycles"][0]
+    assert "problem" not in report, report
+    for w in report["weeks"]:
+        if w["fix"]:
+            assert not _status_of(w["fix"]["verified"], w["band"])
+
+
+def _status_of(fig, band):
+    return [
+        k
+        for k, bad in (
+            ("below", fig["dli_avg"] < band["dli_min"] - 0.01),
+            ("above", fig["dli_avg"] > band["dli_max"] + 0.01),
+            ("stress", fig["ppfd_max"] > band["ppfd_stress"] + 0.01),
+        )
+        if bad
+    ]
