@@ -13,6 +13,7 @@ from app.room.storage import RoomStore
 from app.room.units import format_length
 from app.service import sheet_data
 from app.service.colours import colour_scale
+from app.service.meter import sheet_summary as meter_sheet_summary
 
 
 def room_list(store: RoomStore) -> dict[str, Any]:
@@ -66,6 +67,9 @@ def sheet(room_id: str, room_file: RoomFile, analysis: dict[str, Any], paper: st
         "warnings": sheet_data.sheet_warnings(analysis, u),
         "cautions": analysis["cautions"],
         "dxf_url": f"/api/rooms/{room_id}/plan.dxf",
+        "output_basis": analysis.get("output_basis"),
+        "meter": meter_sheet_summary(room_file),
+        "zones_by_id": {z.id: {"name": z.name} for z in room.zones},
     }
 
 
