@@ -25,6 +25,8 @@ def _serve(args) -> int:
     )
     app = create_app(settings)
     print(f"Leafcast {__version__}: rooms in {settings.data_dir}")
+    for room_id in app.state.restored:
+        print(f"Room '{room_id}' had no file after a crash: restored from its previous revision.")
     print(f"Open http://{args.host}:{args.port}/ in a browser (Ctrl+C stops).", flush=True)
     uvicorn.run(app, host=args.host, port=args.port, log_level="warning")
     return 0

@@ -32,6 +32,7 @@ ROUTERS = (pages, rooms, analysis, planner, photometry, library)
 def create_app(settings: Settings | None = None) -> FastAPI:
     settings = settings or Settings()
     store = RoomStore(settings.data_dir)
+    restored = store.recover()  # rooms a crash left without their file come back from their previous revision
     if settings.seed_samples and settings.samples_dir and not store.list():
         seed_samples(store, settings.samples_dir)
 
@@ -41,6 +42,7 @@ def create_app(settings: Settings | None = None) -> FastAPI:
         description="Lay out grow-room lighting: canopy PPFD and DLI maps, coverage, energy and circuits.",
     )
     app.state.settings, app.state.store, app.state.jobs = settings, store, JobBoard()
+    app.state.restored = restored
     app.state.templates = _templates()
     app.add_middleware(BodyLimit)
     app.add_middleware(LocalOnly, allowed_hosts=settings.allowed_hosts)

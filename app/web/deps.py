@@ -28,7 +28,7 @@ def load_room(store: RoomStore, room_id: str) -> RoomFile:
     try:
         return store.load(room_id)
     except RoomNotFound as exc:
-        raise not_found(f"no room with id '{room_id}'") from exc
+        raise not_found(f"no room with id '{room_id[:80]}'") from exc
     except RoomFileError as exc:
         raise room_error(exc) from exc
 

@@ -9,6 +9,7 @@ from pydantic import BaseModel, Field
 from starlette.exceptions import HTTPException as StarletteHTTPException
 
 from app.room.roomfile import Problem, RoomFileError
+from app.room.storage import StorageFull
 
 
 class ProblemOut(BaseModel):
@@ -68,6 +69,15 @@ def install_error_handlers(app: FastAPI) -> None:
     async def _validation(request: Request, exc: RequestValidationError):
         problems = [Problem(".".join(str(p) for p in e["loc"]), e["msg"]) for e in exc.errors()]
         return error_json(422, "invalid_request", problems[0].message if problems else "invalid request", problems)
+
+    @app.exception_handler(StorageFull)
+    async def _disk_full(request: Request, exc: StorageFull):
+        return error_json(
+            507,
+            "storage_full",
+            "The disk that holds your rooms is full, so nothing was saved; the room is still at its last saved "
+            "revision. Free some space and save again.",
+        )
 
     @app.exception_handler(StarletteHTTPException)
     async def _http(request: Request, exc: StarletteHTTPException):

@@ -99,12 +99,26 @@ async def save_room(room_id: str, request: Request):
     return {"id": room_id, "revision": stored.revision, "name": stored.room.name}
 
 
+@router.post(
+    "/{room_id}/restore-previous",
+    response_model=SavedOut,
+    responses=ERRORS,
+    summary="Make the previous saved revision current again (as a new revision)",
+)
+def restore_previous(request: Request, room_id: str):
+    try:
+        stored = store_of(request).restore_previous(room_id)
+    except RoomNotFound as exc:
+        raise not_found(f"room '{room_id[:80]}' has no previous revision to restore") from exc
+    return {"id": room_id, "revision": stored.revision, "name": stored.room.name}
+
+
 @router.delete("/{room_id}", status_code=204, responses=ERRORS)
 def delete_room(request: Request, room_id: str):
     try:
         store_of(request).delete(room_id)
     except RoomNotFound as exc:
-        raise not_found(f"no room with id '{room_id}'") from exc
+        raise not_found(f"no room with id '{room_id[:80]}'") from exc
     return Response(status_code=204)
 
 
