@@ -12,53 +12,19 @@ import os
 import shutil
 import signal
 import subprocess
-import sys
 import threading
 import time
 import urllib.error
 import urllib.request
-from pathlib import Path
 
 import pytest
 
 from app.room.roomfile import parse_room_file, to_json_bytes
-from app.room.storage import FAULT_ENV, ORPHAN_AGE_S, PREV_SUFFIX, SAVE_STEPS, RoomNotFound, RoomStore
-from tests.conftest import ROOT, _free_port, sample_doc
+from app.room.storage import ORPHAN_AGE_S, PREV_SUFFIX, SAVE_STEPS, RoomNotFound, RoomStore
+from tests.conftest import sample_doc
+from tests.servers import start_server, stop_server
 
-
-def _start(data: Path, fault: str | None = None) -> tuple[subprocess.Popen, str]:
-    port = _free_port()
-    env = {k: v for k, v in os.environ.items() if k != FAULT_ENV}
-    if fault:
-        env[FAULT_ENV] = fault
-    proc = subprocess.Popen(
-        [sys.executable, "-m", "app", "serve", "--port", str(port), "--data-dir", str(data)],
-        cwd=ROOT,
-        env=env,
-        stdout=subprocess.PIPE,
-        stderr=subprocess.STDOUT,
-    )
-    base = f"http://127.0.0.1:{port}"
-    deadline = time.time() + 30
-    while time.time() < deadline:
-        try:
-            with urllib.request.urlopen(base + "/api/rooms", timeout=1):
-                return proc, base
-        except OSError:
-            if proc.poll() is not None:
-                break
-            time.sleep(0.1)
-    proc.kill()
-    raise RuntimeError("server did not start: " + proc.stdout.read().decode(errors="replace"))
-
-
-def _stop(proc: subprocess.Popen) -> None:
-    proc.terminate()
-    try:
-        proc.wait(10)
-    except subprocess.TimeoutExpired:
-        proc.kill()
-        proc.wait(5)
+_start, _stop = start_server, stop_server
 
 
 def _call(base: str, method: str, path: str, body: bytes | None = None):

@@ -147,7 +147,9 @@ class RoomStore:
             _fault_point("folder_synced")
         except OSError as exc:
             if exc.errno in _FULL_ERRNOS:
-                raise StorageFull(exc.errno, f"the disk holding {path.parent} is full; the room was not changed") from exc
+                raise StorageFull(
+                    exc.errno, f"the disk holding {path.parent} is full; the room was not changed"
+                ) from exc
             raise
         finally:
             if tmp is not None:

@@ -23,10 +23,11 @@ from app.room.units import format_area, format_length
 from app.service.planner import JobBoard
 from app.settings import Settings
 from app.web.errors import install_error_handlers
+from app.web.guards import CrossSiteGuard, SecurityHeaders
 from app.web.middleware import BodyLimit, LocalOnly
-from app.web.routes import analysis, library, pages, photometry, planner, rooms
+from app.web.routes import analysis, docs, library, pages, photometry, planner, rooms
 
-ROUTERS = (pages, rooms, analysis, planner, photometry, library)
+ROUTERS = (pages, rooms, analysis, planner, photometry, library, docs)
 
 
 def create_app(settings: Settings | None = None) -> FastAPI:
@@ -40,12 +41,16 @@ def create_app(settings: Settings | None = None) -> FastAPI:
         title="Leafcast",
         version=__version__,
         description="Lay out grow-room lighting: canopy PPFD and DLI maps, coverage, energy and circuits.",
+        docs_url=None,  # served by app.web.routes.docs from installed files (offline, no inline script)
+        redoc_url=None,
     )
     app.state.settings, app.state.store, app.state.jobs = settings, store, JobBoard()
     app.state.restored = restored
     app.state.templates = _templates()
     app.add_middleware(BodyLimit)
+    app.add_middleware(CrossSiteGuard)
     app.add_middleware(LocalOnly, allowed_hosts=settings.allowed_hosts)
+    app.add_middleware(SecurityHeaders)  # outermost: every answer carries the headers, refusals included
     app.mount("/static", StaticFiles(directory=str(asset_dir("static"))), name="static")
     install_error_handlers(app)
     for module in ROUTERS:
