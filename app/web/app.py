@@ -20,6 +20,7 @@ from app.room.models import RoomFile
 from app.room.roomfile import RoomFileError, parse_room_file
 from app.room.storage import RoomStore
 from app.room.units import format_area, format_length
+from app.service.guarded import AnalysisRunner
 from app.service.planner import JobBoard
 from app.settings import Settings
 from app.web.errors import install_error_handlers
@@ -46,6 +47,7 @@ def create_app(settings: Settings | None = None) -> FastAPI:
     )
     app.state.settings, app.state.store, app.state.jobs = settings, store, JobBoard()
     app.state.restored = restored
+    app.state.runner = AnalysisRunner(budget_s=settings.max_analysis_s, workers=settings.analysis_workers)
     app.state.templates = _templates()
     app.add_middleware(BodyLimit)
     app.add_middleware(CrossSiteGuard)

@@ -22,6 +22,7 @@ class ErrorOut(BaseModel):
     message: str
     problems: list[ProblemOut] = []
     current_revision: int | None = None
+    estimate: dict | None = Field(default=None, description="The cost model's estimate, when it refused")
 
 
 ERRORS = {code: {"model": ErrorOut} for code in (400, 403, 404, 409, 413, 415, 421, 422, 503, 507)}
@@ -35,15 +36,21 @@ class ApiError(Exception):
         message: str,
         problems: list[Problem] | None = None,
         current_revision: int | None = None,
+        estimate: dict | None = None,
     ) -> None:
         self.status, self.error, self.message = status, error, message
         self.problems, self.current_revision = problems or [], current_revision
+        self.estimate = estimate
 
 
-def error_json(status: int, error: str, message: str, problems=(), current_revision=None) -> JSONResponse:
+def error_json(
+    status: int, error: str, message: str, problems=(), current_revision=None, estimate=None
+) -> JSONResponse:
     body = {"error": error, "message": message, "problems": [p.as_dict() for p in problems]}
     if current_revision is not None:
         body["current_revision"] = current_revision
+    if estimate is not None:
+        body["estimate"] = estimate
     return JSONResponse(body, status_code=status)
 
 
@@ -63,7 +70,7 @@ def not_found(what: str) -> ApiError:
 def install_error_handlers(app: FastAPI) -> None:
     @app.exception_handler(ApiError)
     async def _api_error(request: Request, exc: ApiError):
-        return error_json(exc.status, exc.error, exc.message, exc.problems, exc.current_revision)
+        return error_json(exc.status, exc.error, exc.message, exc.problems, exc.current_revision, exc.estimate)
 
     @app.exception_handler(RequestValidationError)
     async def _validation(request: Request, exc: RequestValidationError):

@@ -10,7 +10,7 @@ from fastapi import APIRouter, Query, Request
 from app.service.jobs_pool import QueueFull
 from app.service.planner import JobBoard, PlanOptions, check_setup, curves
 from app.web.bodies import PlanIn
-from app.web.deps import load_room, store_of
+from app.web.deps import load_room, store_of, within_budget
 from app.web.errors import ERRORS, ApiError, not_found
 
 router = APIRouter(tags=["planner"])
@@ -36,6 +36,7 @@ def _job_or_404(request: Request, job_id: str):
 )
 def start_plan(request: Request, room_id: str, body: PlanIn) -> dict[str, Any]:
     rf = load_room(store_of(request), room_id)
+    within_budget(request, rf)
     opts = PlanOptions(
         type_ids=tuple(body.type_ids),
         objective=body.objective,
@@ -69,6 +70,7 @@ def cancel_job(request: Request, job_id: str) -> dict[str, Any]:
 )
 def check_room(request: Request, room_id: str) -> dict[str, Any]:
     rf = load_room(store_of(request), room_id)
+    within_budget(request, rf)
     budget_s = request.app.state.settings.max_analysis_s
     try:
         task = jobs_of(request).check_pool.submit(f"check-{room_id}-{id(rf)}", lambda: check_setup(rf))
@@ -96,7 +98,9 @@ def room_curves(
     zone: str = Query(..., max_length=40),
     fixture: list[str] = Query(default=[], max_length=200),
 ) -> dict[str, Any]:
+    rf = load_room(store_of(request), room_id)
+    within_budget(request, rf)
     try:
-        return curves(load_room(store_of(request), room_id), zone, tuple(fixture))
+        return curves(rf, zone, tuple(fixture))
     except (ValueError, StopIteration) as exc:
         raise ApiError(422, "invalid_request", str(exc) or f"no zone '{zone}'") from exc
