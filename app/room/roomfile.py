@@ -20,9 +20,10 @@ from typing import Any
 
 from pydantic import ValidationError
 
-from app.room import limits
+from app.room import layout, limits
 from app.room.library import crops_for
 from app.room.models import FORMAT_NAME, FORMAT_VERSION, Room, RoomFile
+from app.room.year_checks import year_problems
 
 _EDGE_TOLERANCE_M = 0.001  # a fixture's edge may touch a wall
 
@@ -135,10 +136,8 @@ def _duplicates(prefix: str, ids: list[str]) -> list[Problem]:
     ]
 
 
-def fixture_half_extent_m(length_m: float, width_m: float, rotation_deg: float) -> tuple[float, float]:
-    """Half sizes along x and y of a rectangle rotated about the vertical."""
-    c, s = abs(math.cos(math.radians(rotation_deg))), abs(math.sin(math.radians(rotation_deg)))
-    return 0.5 * (length_m * c + width_m * s), 0.5 * (length_m * s + width_m * c)
+# The planner still imports the old name; the rule itself lives in app.room.layout.
+fixture_half_extent_m = layout.rotated_half_extent_m
 
 
 def grid_point_count(room: Room) -> int:
@@ -200,22 +199,20 @@ def consistency_problems(room_file: RoomFile) -> list[Problem]:
                 )
             )
             continue
-        hx, hy = fixture_half_extent_m(t.geometry.length_m, t.geometry.width_m, f.rotation_deg)
-        if f.x_m - hx < -tol or f.x_m + hx > W + tol or f.y_m - hy < -tol or f.y_m + hy > L + tol:
+        x0, y0, x1, y1 = layout.fixture_extent(f, t)
+        if x0 < -tol or x1 > W + tol or y0 < -tol or y1 > L + tol:
             p.append(Problem(at, f"fixture '{f.id}' is outside the room: its footprint reaches beyond the walls"))
         if f.hanging_height_m > H + tol:
             p.append(Problem(f"{at}.hanging_height_m", f"{f.hanging_height_m:g} m is above the ceiling ({H:g} m)"))
         if f.circuit not in circuits:
             p.append(Problem(f"{at}.circuit", f"unknown circuit '{f.circuit}'; the room has {circuits}"))
-        for z in room.zones:
-            over = z.x_m <= f.x_m <= z.x_m + z.width_m and z.y_m <= f.y_m <= z.y_m + z.length_m
-            if over and z.canopy_height_m < f.hanging_height_m < z.canopy_height_m + 0.01:
-                p.append(
-                    Problem(
-                        f"{at}.hanging_height_m", f"fixture '{f.id}' is less than 1 cm above the canopy of '{z.id}'"
-                    )
-                )
-            if over and abs(f.hanging_height_m - z.canopy_height_m) < 1e-9:
+        lit = layout.zone_lit_by(room.zones, f)
+        if lit is not None and f.hanging_height_m < lit.canopy_height_m + layout.MIN_FIXTURE_CLEARANCE_M:
+            p.append(
+                Problem(f"{at}.hanging_height_m", f"fixture '{f.id}' is less than 1 cm above the canopy of '{lit.id}'")
+            )
+        for z in layout.zones_under(room.zones, f):
+            if abs(f.hanging_height_m - z.canopy_height_m) < 1e-9:
                 p.append(Problem(f"{at}.hanging_height_m", f"fixture '{f.id}' sits in the canopy of '{z.id}'"))
         for o in room.obstacles:
             if (
@@ -225,6 +222,9 @@ def consistency_problems(room_file: RoomFile) -> list[Problem]:
             ):
                 p.append(Problem(at, f"fixture '{f.id}' is inside obstacle '{o.id}'"))
 
+    p += reading_problems(room)
+
+    p += [Problem(field, reason) for field, reason in year_problems(room_file)]
     points = grid_point_count(room)
     if points > limits.MAX_GRID_POINTS:
         p.append(
@@ -234,6 +234,46 @@ def consistency_problems(room_file: RoomFile) -> list[Problem]:
                 f"{limits.MAX_GRID_POINTS:,}: use a coarser spacing",
             )
         )
+    return p
+
+
+def reading_problems(room: Room) -> list[Problem]:
+    """Readings name a zone of the room and lie inside it (a grid must fit, every point too)."""
+    p = _duplicates("room.readings", [r.id for r in room.readings])
+    zones = {z.id: z for z in room.zones}
+    tol = _EDGE_TOLERANCE_M
+    for i, r in enumerate(room.readings):
+        at = f"room.readings[{i}]"
+        z = zones.get(r.zone_id)
+        if z is None:
+            p.append(Problem(f"{at}.zone_id", f"unknown zone '{r.zone_id}'; the room has {sorted(zones)}"))
+            continue
+        x0, x1, y0, y1 = z.x_m - tol, z.x_m + z.width_m + tol, z.y_m - tol, z.y_m + z.length_m + tol
+        if r.grid is not None:
+            g = r.grid
+            rows, cols = len(g.values), len(g.values[0])
+            far_x = g.origin_x_m + (cols - 1) * g.spacing_x_m
+            far_y = g.origin_y_m + (rows - 1) * g.spacing_y_m
+            if not (x0 <= g.origin_x_m and far_x <= x1 and y0 <= g.origin_y_m and far_y <= y1):
+                p.append(
+                    Problem(
+                        f"{at}.grid",
+                        f"the grid of {rows} rows x {cols} columns does not fit zone '{z.id}': it spans "
+                        f"x {g.origin_x_m:.3g}-{far_x:.3g} m, y {g.origin_y_m:.3g}-{far_y:.3g} m, the zone "
+                        f"x {z.x_m:.3g}-{z.x_m + z.width_m:.3g} m, y {z.y_m:.3g}-{z.y_m + z.length_m:.3g} m",
+                    )
+                )
+            if all(v is None for row in g.values for v in row):
+                p.append(Problem(f"{at}.grid.values", "the grid holds no reading"))
+        for j, pt in enumerate(r.points):
+            if not (x0 <= pt.x_m <= x1 and y0 <= pt.y_m <= y1):
+                p.append(
+                    Problem(
+                        f"{at}.points[{j}]",
+                        f"reading at ({pt.x_m:.3g}, {pt.y_m:.3g}) m is outside zone '{z.id}' "
+                        f"(x {z.x_m:.3g}-{z.x_m + z.width_m:.3g} m, y {z.y_m:.3g}-{z.y_m + z.length_m:.3g} m)",
+                    )
+                )
     return p
 
 
