@@ -113,10 +113,10 @@ class RoomStore:
             raise RoomNotFound(room_id) from exc
 
     def load(self, room_id: str) -> RoomFile:
-        return parse_room_file(self._read(room_id))
+        return parse_room_file(self._read(room_id), strict_text=False)
 
     def load_previous(self, room_id: str) -> RoomFile:
-        return parse_room_file(self._read(room_id, PREV_SUFFIX))
+        return parse_room_file(self._read(room_id, PREV_SUFFIX), strict_text=False)
 
     def list(self) -> list[RoomSummary]:
         out = []
@@ -124,7 +124,7 @@ class RoomStore:
             if path.name.endswith(PREV_SUFFIX):
                 continue
             try:
-                rf = parse_room_file(path.read_bytes())
+                rf = parse_room_file(path.read_bytes(), strict_text=False)
             except (RoomFileError, FileNotFoundError):
                 continue  # a damaged file is skipped in the list, never deleted; a deleted one is gone
             out.append(RoomSummary(path.stem, rf.room.name, rf.revision, len(rf.room.fixtures), len(rf.room.zones)))
@@ -244,7 +244,7 @@ class RoomStore:
                 main = prev.with_name(room_id + SUFFIX)
                 if not _ID_RE.fullmatch(room_id) or main.exists():
                     continue
-                tmp = self._temp_file(main, prev.read_bytes())
+                tmp = self._temp_file(main, prev.read_bytes())  # bytes as they were: no re-encoding
                 os.replace(tmp, main)
                 restored.append(room_id)
                 log.warning("room '%s' was missing after a crash: restored from its previous revision", room_id)
