@@ -137,8 +137,8 @@ def compute_scene(
     out = []
     exitance = None
     cuts = tuple(sorted({round(g.z_m, 6) for g in grids}))
+    blockers = BoxSet(boxes + canopy_slabs(grids))
     if enc.has_diffuse and emitters:
-        blockers = boxes + canopy_slabs(grids)
         e_patch = sum(_fixture_on_patches(e, enc, blockers, cuts) for e in emitters)
         exitance = radiosity_operator(enc, blockers, cuts) @ e_patch
     covers = {g: covering_height_m(g, boxes) for g in grids}
@@ -155,7 +155,7 @@ def compute_scene(
             if spec is not None:
                 reflected += spec
         if exitance is not None:
-            reflected += diffuse_map(enc, g, exitance, cuts)
+            reflected += diffuse_map(enc, g, exitance, cuts, blockers)
         out.append(ZoneLight(g, direct, reflected))
     return out
 

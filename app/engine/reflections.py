@@ -391,23 +391,34 @@ def _cell_edges(points: np.ndarray, start: float, extent: float) -> np.ndarray:
 
 
 @memoise("patch_to_grid", max_bytes=48 * MIB)
-def patch_to_grid(enc: Enclosure, grid: Grid, cuts_m: tuple[float, ...] = ()) -> np.ndarray:
-    """(M, P) irradiance at each grid point per unit exitance of each patch.
+def patch_to_grid(
+    enc: Enclosure, grid: Grid, cuts_m: tuple[float, ...] = (), boxes: tuple[Box, ...] = ()
+) -> np.ndarray:
+    """(M, P) irradiance at each grid point per unit exitance of each patch, shadowed by ``boxes``.
+
+    A box hides a patch from a point when it crosses the segment to the patch's centre (clipped at
+    the point's horizon); patches are a quarter metre, so many of them make a soft shadow.
 
     Grid points lie on the zone's edges; where a zone meets a matt wall the irradiance changes fast
     (it rises to half the wall's exitance at the wall's foot), so points within EDGE_CELLS spacings
     of a matt wall take the mean over their own cell (3 × 3 Gauss-Legendre points) rather than the
     value at the point, and the map integrates to the light that lands.
     """
-    R = _transfer(enc, wall_patches(enc, cuts_m), grid)
+    R = _transfer(enc, wall_patches(enc, cuts_m), grid, boxes=boxes)
     R.setflags(write=False)
     return R
 
 
-def _transfer(enc: Enclosure, p: Patches, grid: Grid, rows: slice = slice(None)) -> np.ndarray:
-    """(M, P) transfer for the grid rows ``rows``, edge cells averaged (see patch_to_grid)."""
+def _transfer(enc: Enclosure, p: Patches, grid: Grid, rows: slice = slice(None), boxes=()) -> np.ndarray:
+    """(M, P) transfer for the grid rows ``rows``, edge cells averaged and shadowed (see patch_to_grid)."""
     pts = _grid_points(grid, rows)
     R = _to_points(p, pts)
+    above = _boxes_between(boxes, grid.z_m, enc.height_m)
+    if above and len(p.areas):
+        seen = p.corners.copy()
+        seen[..., 2] = np.maximum(seen[..., 2], grid.z_m)
+        hidden = blocked(seen.mean(axis=1) + 1e-6 * p.normals, pts, above)  # (P, M)
+        R[hidden.T] = 0.0
     near = _near_matt_wall(enc, grid, pts)
     if near.any():
         j_first = range(grid.ny)[rows].start if grid.ny else 0
@@ -488,13 +499,17 @@ def _pair_factors(p: np.ndarray, corners: np.ndarray) -> np.ndarray:
     return out
 
 
-def diffuse_map(enc: Enclosure, grid: Grid, exitance: np.ndarray, cuts_m: tuple[float, ...] = ()) -> np.ndarray:
-    """Irradiance (ny, nx) on the grid from patches of the given exitance [µmol m⁻² s⁻¹]."""
+def diffuse_map(
+    enc: Enclosure, grid: Grid, exitance: np.ndarray, cuts_m: tuple[float, ...] = (), boxes: tuple[Box, ...] = ()
+) -> np.ndarray:
+    """Irradiance (ny, nx) on the grid from patches of the given exitance [µmol m⁻² s⁻¹], shadowed by boxes."""
     p = wall_patches(enc, cuts_m)
+    boxes = tuple(_boxes_between(boxes, grid.z_m, enc.height_m))
     if grid.nx * grid.ny * len(p.areas) * 4 <= CACHE_TRANSFER_ELEMENTS:
-        return (patch_to_grid(enc, grid, cuts_m) @ exitance.astype(np.float32)).reshape(grid.ny, grid.nx)
+        R = patch_to_grid(enc, grid, cuts_m, boxes)
+        return (R @ exitance.astype(np.float32)).reshape(grid.ny, grid.nx)
     out = np.empty((grid.ny, grid.nx), dtype=np.float32)
     rows = max(1, CACHE_TRANSFER_ELEMENTS // (grid.nx * len(p.areas) * 4))
     for a in range(0, grid.ny, rows):
-        out[a : a + rows] = (_transfer(enc, p, grid, slice(a, a + rows)) @ exitance).reshape(-1, grid.nx)
+        out[a : a + rows] = (_transfer(enc, p, grid, slice(a, a + rows), boxes) @ exitance).reshape(-1, grid.nx)
     return out

@@ -155,3 +155,37 @@ def test_white_room_with_an_open_door_matches_monte_carlo():
         assert np.max(np.abs(o3 / r3 - 1)) < 0.08
     corners = [(0, 0), (0, -1), (-1, 0), (-1, -1)]
     assert max(abs(ours[c] / ref[c] - 1) for c in corners) < 0.08
+
+
+@pytest.mark.slow
+def test_matt_wall_light_is_shadowed_under_a_shelf():
+    # A white room with a shelf board over one corner of the canopy: the light under it (direct shade and
+    # wall light hidden by the board) against Monte Carlo photons that the board stops.
+    W, L, H = 3.0, 3.6, 2.4
+    fixtures = tuple(
+        Emitter(f"p{k}", x, y, 1.8, 560.0, lambertian(), "panel", 0.6, 0.6)
+        for k, (x, y) in enumerate([(0.9, 1.2), (2.1, 1.2), (0.9, 2.4), (2.1, 2.4)])
+    )
+    paint = ("diffuse", 0.8)
+    enc = Enclosure(W, L, H, surfaces=_surfaces(left=paint, right=paint, back=paint, front=paint, ceiling=paint))
+    shelf = (0.0, 0.0, 1.3, 1.2, 1.5, 1.33)
+    g = Grid("floor", 0.0, 0.0, W, L, 0.9, 0.05)
+    clear_caches()
+    from app.engine.scene import Box
+
+    zl = compute_scene(fixtures, (g,), enc, (Box(*shelf),))[0]
+    nx, ny = 10, 12  # 30 cm cells: the shelf covers the 4 × 5 in the front-left corner
+    ref_kinds = {s: ("matt", 0.8) for s in ("left", "right", "front", "back", "ceiling")}
+    rng = np.random.default_rng(17)
+    ref = 0.0
+    for f in fixtures:
+        n = 800_000
+        o = sample_emitter(rng, n, f.x_m, f.y_m, f.z_m, f.shape, f.length_m, f.width_m)
+        d = sample_cos_power(rng, n, 1.0)
+        t, _ = trace_room(rng, o, d, f.flux_umol_s / n, (W, L, H), ref_kinds, [(0, 0, W, L, 0.9, nx, ny)], (shelf,))
+        ref = ref + t[0]
+    ours = binned(zl.ppfd, g, nx, ny)
+    under = (slice(0, 5), slice(0, 4))
+    assert ref[under].mean() < 0.6 * ref[6:, 5:].mean()  # the shelf really shades
+    assert abs(ours[under].sum() / ref[under].sum() - 1) < 0.05
+    assert abs(ours.sum() / ref.sum() - 1) < 0.03
