@@ -25,8 +25,10 @@ from app.engine import cache as engine_cache
 from app.engine import compute, direct
 from app.engine.compute import compute_scene
 from app.engine.direct import irradiance_from_nodes
+from app.engine.distributions import lambertian
 from app.engine.emitters import local_nodes
 from app.engine.reflections import image_list, mirror_coordinate
+from app.engine.scene import Box, Emitter, Enclosure, Grid
 from app.room.roomfile import parse_room_file
 from app.service.farm import vertical_farm
 from app.service.scene_builder import EngineScene, build_scene
@@ -82,11 +84,24 @@ def brute_force(scene: EngineScene) -> list[np.ndarray]:
             near = direct.relevant_boxes(e, g, scene.boxes, 1e9)
             total += irradiance_from_nodes(pts, nodes, flux, e.distribution, e.rotation_deg, boxes=near)
             if scene.enclosure.has_specular:
-                for i, j, w in image_list(e, g, scene.enclosure):
-                    img = nodes.copy()
-                    img[:, 0] = mirror_coordinate(nodes[:, 0], i, scene.enclosure.width_m)
-                    img[:, 1] = mirror_coordinate(nodes[:, 1], j, scene.enclosure.length_m)
-                    total += irradiance_from_nodes(pts, img, w * flux, e.distribution, e.rotation_deg)
+                enc = scene.enclosure
+                for i, j, w in image_list(e, g, enc):
+                    # Every image with the dense nodes (the far ones with its centre) and every box copy crossed.
+                    src, fl = (nodes, flux) if max(abs(i), abs(j)) <= 1 else (nodes.mean(axis=0)[None], [flux.sum()])
+                    img = src.copy()
+                    img[:, 0] = mirror_coordinate(src[:, 0], i, enc.width_m)
+                    img[:, 1] = mirror_coordinate(src[:, 1], j, enc.length_m)
+                    mirror = (-1.0 if i % 2 else 1.0, -1.0 if j % 2 else 1.0)
+                    total += irradiance_from_nodes(
+                        pts,
+                        img,
+                        w * np.asarray(fl),
+                        e.distribution,
+                        e.rotation_deg,
+                        boxes=near,
+                        mirror=mirror,
+                        fold_m=(enc.width_m, enc.length_m),
+                    )
         out.append(total.reshape(g.ny, g.nx))
     if scene.enclosure.has_diffuse:
         engine = run(scene)
@@ -222,8 +237,59 @@ def bench_year() -> dict:
         year_view("bench", rf)
         runs.append(time.perf_counter() - t0)
     cold = statistics.median(runs)
-    print(f"cycle-and-year page, greenhouse-lettuce-bench: first call {first:.2f} s, then {cold:.2f} s with cold caches")
+    print(
+        f"cycle-and-year page, greenhouse-lettuce-bench: first call {first:.2f} s, then {cold:.2f} s with cold caches"
+    )
     return {"scene": "year page greenhouse-lettuce-bench", "first_s": first, "cold_s": cold}
+
+
+def tent_with_filter_and_fan() -> EngineScene:
+    """The sample tent with a carbon filter hung from the top bars and a 15 cm clip fan on a corner pole."""
+    s = sample("hobby-tent-peppers")
+    carbon_filter = Box(0.45, 0.45, 1.45, 0.75, 0.75, 1.95)
+    fan = Box(0.03, 0.03, 0.75, 0.18, 0.18, 0.90)
+    return replace(s, boxes=(*s.boxes, carbon_filter, fan))
+
+
+def white_room() -> EngineScene:
+    """Three white-painted walls and ceiling, an open front (a wide doorway), four 0.6 m panels."""
+    W, L, H = 3.0, 3.6, 2.4
+    paint = ("diffuse", 0.8)
+    enc = Enclosure(
+        W,
+        L,
+        H,
+        surfaces=(
+            ("left", *paint),
+            ("right", *paint),
+            ("back", *paint),
+            ("front", "open", 0.0),
+            ("ceiling", *paint),
+        ),
+    )
+    fixtures = tuple(
+        Emitter(f"p{k}", x, y, 1.6, 560.0, lambertian(), "panel", 0.6, 0.6)
+        for k, (x, y) in enumerate([(0.9, 1.2), (2.1, 1.2), (0.9, 2.4), (2.1, 2.4)])
+    )
+    return EngineScene(fixtures, (Grid("floor", 0.0, 0.0, W, L, 0.9, 0.025),), enc, ())
+
+
+def one_obstacle_ratio(name: str, repeats: int) -> dict:
+    """Full-compute time of a sample with one 15 cm box added, over the same without (target <= 3x)."""
+    s = sample(name)
+    g = s.grids[0]
+    # A clip fan: 15 cm, at the zone's front-left corner, its bottom 15 cm above the canopy.
+    fan = Box(g.x0_m + 0.03, g.y0_m + 0.03, g.z_m + 0.15, g.x0_m + 0.18, g.y0_m + 0.18, g.z_m + 0.30)
+    with_box = replace(s, boxes=(*s.boxes, fan))
+
+    def full(scene):
+        clear_fixture_caches()
+        run(scene)
+
+    run(s)
+    run(with_box)  # warm the shared (cold) caches
+    base, boxed = median_ms(lambda: full(s), repeats), median_ms(lambda: full(with_box), repeats)
+    return {"scene": f"{name} + one 15 cm box", "full_ms": boxed, "without_ms": base, "ratio": boxed / base}
 
 
 def main(argv: list[str] | None = None) -> int:
@@ -254,7 +320,17 @@ def main(argv: list[str] | None = None) -> int:
         bench_scene(
             "rack 2x4 ft, 3 tiers, 6 strips, 1 in grid", sample("three-tier-greens-rack"), args.repeats, True, rng
         ),
+        bench_scene(
+            "tent 4x4 ft + carbon filter + clip fan, reflective film",
+            tent_with_filter_and_fan(),
+            args.repeats,
+            True,
+            rng,
+        ),
+        bench_scene("white-painted room 3 x 3.6 m, open doorway, 2.5 cm grid", white_room(), args.repeats, True, rng),
     ]
+    for name in ("hobby-tent-peppers", "basement-two-benches", "three-tier-greens-rack"):
+        results.append(one_obstacle_ratio(name, args.repeats))
     if not args.no_farm:
         farm = build_scene(vertical_farm().room)
         results.append(bench_scene("vertical farm 964 m2, 5 tiers, 1,000 fixtures, 5 cm grid", farm, 3, False, rng))
@@ -266,6 +342,11 @@ def main(argv: list[str] | None = None) -> int:
         f"{'brute ms':>10}{'speed-up':>9}{'RMS diff':>9}"
     )
     for r in results:
+        if "ratio" in r:
+            print(
+                f"{r['scene']:<62} full {r['full_ms']:.1f} ms, without the box {r['without_ms']:.1f} ms: {r['ratio']:.1f}x"
+            )
+            continue
         print(
             f"{r['scene']:<62}{r['points']:>9,}{r['fixtures']:>6}{r['cold_ms']:>10.1f}{r['full_ms']:>10.1f}"
             f"{r['drag_ms']:>9.1f}{r['peak_mib']:>10.1f}"

@@ -373,7 +373,7 @@ def _patch_images(enc: Enclosure) -> list[tuple[int, int, float]]:
     return out
 
 
-CACHE_TRANSFER_ELEMENTS = 20_000_000
+CACHE_TRANSFER_ELEMENTS = 16_000_000  # points × patches of a cached transfer (float32: 64 MB)
 
 
 def _grid_points(grid: Grid, rows: slice = slice(None)) -> np.ndarray:
@@ -390,7 +390,7 @@ def _cell_edges(points: np.ndarray, start: float, extent: float) -> np.ndarray:
     return np.concatenate([[start], mid, [start + extent]])
 
 
-@memoise("patch_to_grid", max_bytes=48 * MIB)
+@memoise("patch_to_grid", max_bytes=160 * MIB)
 def patch_to_grid(
     enc: Enclosure, grid: Grid, cuts_m: tuple[float, ...] = (), boxes: tuple[Box, ...] = ()
 ) -> np.ndarray:
@@ -505,11 +505,11 @@ def diffuse_map(
     """Irradiance (ny, nx) on the grid from patches of the given exitance [µmol m⁻² s⁻¹], shadowed by boxes."""
     p = wall_patches(enc, cuts_m)
     boxes = tuple(_boxes_between(boxes, grid.z_m, enc.height_m))
-    if grid.nx * grid.ny * len(p.areas) * 4 <= CACHE_TRANSFER_ELEMENTS:
+    if grid.nx * grid.ny * len(p.areas) <= CACHE_TRANSFER_ELEMENTS:
         R = patch_to_grid(enc, grid, cuts_m, boxes)
         return (R @ exitance.astype(np.float32)).reshape(grid.ny, grid.nx)
     out = np.empty((grid.ny, grid.nx), dtype=np.float32)
-    rows = max(1, CACHE_TRANSFER_ELEMENTS // (grid.nx * len(p.areas) * 4))
+    rows = max(1, CACHE_TRANSFER_ELEMENTS // (grid.nx * max(len(p.areas), 1)))
     for a in range(0, grid.ny, rows):
         out[a : a + rows] = (_transfer(enc, p, grid, slice(a, a + rows), boxes) @ exitance).reshape(-1, grid.nx)
     return out
