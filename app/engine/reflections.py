@@ -7,13 +7,19 @@ reflectances of the walls crossed. Downward emitters never light the ceiling,
 so the lattice is exact for vertical walls. Images are summed until their peak
 contribution falls below ``IMAGE_RELATIVE`` of the real source's peak.
 
-Matt walls use radiosity over wall and ceiling patches: the exitance B solves
-(I − ρF) B = ρ E_direct with point-to-patch configuration factors regularised by
-the coaxial-disk factor (Howell, A Catalog of Radiation Heat Transfer
-Configuration Factors, case B-12: F = 1 / (1 + (h/r)²)), which stays finite for
-adjacent patches. Floor and canopy absorb; open sides let light escape.
-Reflected light from matt walls is not shadowed by obstacles (it is soft, and
-the limitation is stated in the README).
+Each surface has its own finish (Enclosure.surface): only mirror surfaces make
+images, only matt ones carry patches.
+
+Matt surfaces use radiosity over patches: the exitance B solves
+(I − ρF) B = ρ E_direct, F_ij the exact configuration factor from the centre of
+patch i to rectangle j (Lambert's contour formula, app/engine/formfactors.py;
+Howell, A Catalog of Radiation Heat Transfer Configuration Factors). Wall rows
+are split at canopy heights. Patch-to-map transfers are exact within
+EXACT_WITHIN_SIZES patch diagonals, clipped at the map's horizon, averaged over
+the cell at a matt wall, and shadowed by obstacles and canopies. Floor and
+canopy absorb unless the floor is given as matt; open surfaces let light escape.
+In a room with mirror and matt surfaces, mirror images light the matt patches,
+but matt light sent on by way of a mirror is not followed (stated in the README).
 """
 
 from __future__ import annotations
