@@ -19,7 +19,7 @@ from __future__ import annotations
 
 import numpy as np
 
-CHUNK_ELEMENTS = 1 << 21  # element × polygon pairs per pass
+CHUNK_ELEMENTS = 1 << 19  # element × polygon vertices per pass: bounds temporary memory
 
 
 def element_to_polygon(p: np.ndarray, n: np.ndarray, vertices: np.ndarray) -> np.ndarray:

@@ -396,7 +396,7 @@ def _cell_edges(points: np.ndarray, start: float, extent: float) -> np.ndarray:
     return np.concatenate([[start], mid, [start + extent]])
 
 
-@memoise("patch_to_grid", max_bytes=160 * MIB)
+@memoise("patch_to_grid", max_bytes=64 * MIB)
 def patch_to_grid(
     enc: Enclosure, grid: Grid, cuts_m: tuple[float, ...] = (), boxes: tuple[Box, ...] = ()
 ) -> np.ndarray:
@@ -493,7 +493,7 @@ def _to_points(p: Patches, pts: np.ndarray) -> np.ndarray:
 def _pair_factors(p: np.ndarray, corners: np.ndarray) -> np.ndarray:
     """Exact factors for matched pairs: upward elements p (K, 3) and rectangles corners (K, 4, 3)."""
     out = np.empty(p.shape[0], dtype=np.float32)
-    step = 1 << 18
+    step = 1 << 16  # pairs per pass: bounds temporary memory
     for a in range(0, p.shape[0], step):
         r = corners[a : a + step] - p[a : a + step, None, :]
         r /= np.maximum(np.linalg.norm(r, axis=-1, keepdims=True), 1e-12)
