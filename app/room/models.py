@@ -141,6 +141,9 @@ class FixtureType(Strict):
     ppf_umol_s: float = Field(gt=0, le=20000, description="Photosynthetic photon flux at full power [µmol/s].")
     power_w: float = Field(gt=0, le=10000, description="Input power at full power [W].")
     weight_kg: float | None = Field(default=None, ge=0, le=500)
+    price: float | None = Field(
+        default=None, ge=0, le=1_000_000, description="Purchase price of one fixture, in the room's currency."
+    )
     notes: str = Field(default="", max_length=1000)
 
 
@@ -240,6 +243,12 @@ class Room(Strict):
         default=0.0254, ge=limits.MIN_GRID_SPACING_M, le=1.0, description="Canopy grid spacing (1 inch)."
     )
     display_units: DisplayUnits = "imperial"
+    dark_allowance: float | None = Field(
+        default=None,
+        ge=0,
+        le=0.5,
+        description="Share of a zone's area allowed below the DLI band (0-0.5); none: Leafcast's default 0.10.",
+    )
 
 
 class RoomFile(Strict):

@@ -21,6 +21,7 @@ from app.room import layout
 from app.room.library import crops_for
 from app.room.models import CanopyZone, Crop, Fixture, Room, RoomFile
 from app.service.scene_builder import build_scene
+from app.service.verdict import allowance_info, dark_allowance, zone_verdict
 
 UNIFORMITY_NOTE_BELOW = 0.7  # Leafcast's own prompt, no source: no horticultural pass mark is published
 DEFAULT_MIN_DARK_H = 4.0  # common practice, no source (4-6 h for most crops)
@@ -166,9 +167,18 @@ def _region_stats(zl, region: Region) -> dict[str, Any] | None:
 
 
 def analyse(
-    room_file: RoomFile, *, with_budget: bool = False, regions: tuple[Region, ...] = (), include_grids: bool = True
+    room_file: RoomFile,
+    *,
+    with_budget: bool = False,
+    regions: tuple[Region, ...] = (),
+    include_grids: bool = True,
+    with_fixes: bool = True,
 ) -> dict[str, Any]:
-    """The whole analysis of a room: per-zone maps and figures, energy, circuits, warnings."""
+    """The whole analysis of a room: per-zone maps and figures, energy, circuits, warnings.
+
+    With ``with_fixes`` each zone that misses its target gets fixes checked by analysing the changed room
+    again (:mod:`app.service.advice`); the verdict is :mod:`app.service.verdict`'s, with the room's allowance.
+    """
     t0 = time.perf_counter()
     room = room_file.room
     crops = crops_for(room_file)
@@ -179,6 +189,7 @@ def analyse(
     hours = _fixture_hours(room)
     emitted = sum(e.flux_umol_s for e in scene.emitters)
 
+    allowance = dark_allowance(room)
     warnings: list[dict[str, Any]] = []
     zones_out = []
     canopy_flux = 0.0
@@ -204,45 +215,36 @@ def analyse(
         canopy_photons_mol_day += flux * photoperiod * 3600 / 1e6
         target_mid = 0.5 * (stage.dli_min + stage.dli_max)
         hours_for_min = float(mx.photoperiod_for_dli_h(stage.dli_min, stats["avg"])) if stats["avg"] > 0 else None
-        hours_for_min_everywhere = (
-            float(mx.photoperiod_for_dli_h(stage.dli_min, stats["min"])) if stats["min"] > 0 else math.inf
-        )
         dim_scale_mid = target_mid / dli_stats["avg"] if dli_stats["avg"] > 0 else None
         xs, ys = zl.grid.x_m, zl.grid.y_m
 
         if dark_share > 0:
-            b = mx.mask_bounds(dark, xs, ys)
-            if hours_for_min_everywhere <= 24 - crop.min_dark_h:
-                fix = (
-                    f"Lengthen the photoperiod to {math.ceil(hours_for_min_everywhere * 4) / 4:g} h, "
-                    "or lower or add a fixture over the dark area."
-                )
-            else:
-                fix = "Add a fixture over the dark area, lower the fixtures nearby, or raise their dimming."
+            within = dark_share <= allowance + 1e-9
             warnings.append(
                 _warn(
                     "dark_zone",
-                    "warning" if dark_share < 0.5 else "error",
+                    "info" if within else ("warning" if dark_share < 0.5 else "error"),
                     f"{dark_share:.0%} of {zone.name} ({dark_area:.2f} m²) gets less than the "
                     f"{stage.dli_min:g} mol m⁻² d⁻¹ that {crop.name.lower()} needs "
-                    f"(lowest {dli_stats['min']:.1f}).",
-                    fix,
+                    f"(lowest {dli_stats['min']:.1f}); "
+                    + (
+                        f"within the {allowance:.0%} allowance for dark area."
+                        if within
+                        else f"more than the {allowance:.0%} allowance for dark area."
+                    ),
+                    "Nothing to do: within the allowance."
+                    if within
+                    else "Lengthen the photoperiod, raise the dimming, lower the fixtures or add one over the dark area.",
                     zone.id,
-                    where=b,
+                    where=mx.mask_bounds(dark, xs, ys),
                 )
             )
         if hot_share > 0:
             b = mx.mask_bounds(hot, xs, ys)
             fid = _nearest_fixture(room, 0.5 * (b[0] + b[2]), 0.5 * (b[1] + b[3]))
-            f = next((f for f in room.fixtures if f.id == fid), None)
-            dim_to = (f.dimming_pct * stage.ppfd_stress_umol_m2_s / stats["max"]) if f else None
             fix = (
-                (
-                    f"Raise fixture {fid} or dim it to about {max(10, math.floor(dim_to)):g} % "
-                    f"(peak {stats['max']:.0f} against the {stage.ppfd_stress_umol_m2_s:g} limit)."
-                )
-                if f
-                else "Raise or dim the fixtures."
+                f"Raise or dim the fixtures over it (peak {stats['max']:.0f} against the "
+                f"{stage.ppfd_stress_umol_m2_s:g} limit)."
             )
             warnings.append(
                 _warn(
@@ -264,8 +266,8 @@ def analyse(
                     "info",
                     f"{zone.name} averages {dli_stats['avg']:.1f} mol m⁻² d⁻¹, above the "
                     f"{stage.dli_min:g}-{stage.dli_max:g} band: power is being spent for no gain.",
-                    f"Shorten the photoperiod to about {math.floor(hours_fit * 4) / 4:g} h, or dim to about "
-                    f"{max(10, math.floor(100 * stage.dli_max / dli_stats['avg'])):g} % of the present output.",
+                    f"Shorten the photoperiod (about {math.floor(hours_fit * 4) / 4:g} h would bring the average "
+                    "to the top of the band) or dim the fixtures over it.",
                     zone.id,
                 )
             )
@@ -307,6 +309,7 @@ def analyse(
             "share_in_band": band_share,
             "dark": {"area_m2": dark_area, "share": dark_share, "outline": mx.mask_outline(dark, xs, ys)},
             "hot": {"area_m2": hot_area, "share": hot_share, "outline": mx.mask_outline(hot, xs, ys)},
+            "verdict": zone_verdict(dark_share, hot_share, dli_stats["avg"], stage.dli_max, allowance),
             "photoperiod_for_target_h": hours_for_min,
             "dimming_scale_for_target_mid": dim_scale_mid,
             "canopy_flux_umol_s": flux,
@@ -424,6 +427,11 @@ def analyse(
         "emitted_umol_s": emitted,
         "regions": [r for r in (_region_stats(zl, reg) for reg in regions for zl in lights) if r],
         "warnings": warnings,
+        "verdict": {
+            **allowance_info(room),
+            "meets_target": all(z["verdict"]["meets_target"] for z in zones_out)
+            and all(c["ok"] for c in circuits_out),
+        },
         "cautions": CAUTIONS,
         "compute_ms": compute_ms,
     }
@@ -439,5 +447,9 @@ def analyse(
             "unresolved_umol_s": b.unresolved_umol_s,
             "accounted_umol_s": b.accounted_umol_s,
         }
+    if with_fixes:
+        from app.service.advice import attach_fixes  # advice re-analyses through this module
+
+        attach_fixes(room_file, result, [zl.ppfd.astype(float) for zl in lights], [zl.grid.cell_area_m2 for zl in lights])
     result["elapsed_ms"] = (time.perf_counter() - t0) * 1000
     return result
