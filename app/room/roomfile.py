@@ -135,7 +135,7 @@ def _duplicates(prefix: str, ids: list[str]) -> list[Problem]:
     ]
 
 
-# The planner still imports the old name; the rule itself lives in app.room.layout.
+# Kept for callers of the old name; the rule itself lives in app.room.layout.
 fixture_half_extent_m = layout.rotated_half_extent_m
 
 
