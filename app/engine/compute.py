@@ -8,10 +8,10 @@ only its own contribution is recomputed (the drag case).
 from __future__ import annotations
 
 from dataclasses import dataclass
-from functools import lru_cache
 
 import numpy as np
 
+from app.engine.cache import MIB, memoise
 from app.engine.direct import Patch, direct_patch
 from app.engine.reflections import diffuse_map, patch_irradiance, radiosity_operator, specular_map
 from app.engine.scene import Box, Emitter, Enclosure, Grid
@@ -104,7 +104,7 @@ class BoxSet(tuple):
         return h
 
 
-@lru_cache(maxsize=8192)
+@memoise("fixture_on_grid", max_bytes=128 * MIB)
 def fixture_on_grid(
     emitter: Emitter,
     grid: Grid,
@@ -121,7 +121,7 @@ def fixture_on_grid(
     return direct, spec
 
 
-@lru_cache(maxsize=8192)
+@memoise("fixture_on_patches", max_bytes=32 * MIB)
 def _fixture_on_patches(emitter: Emitter, enc: Enclosure, boxes: tuple[Box, ...]) -> np.ndarray:
     e = patch_irradiance(emitter, enc, boxes)
     e.setflags(write=False)

@@ -23,6 +23,7 @@ from app.room import layout
 from app.room.library import crops_for
 from app.room.models import CanopyZone, Fixture, FixtureType, Room, RoomFile
 from app.room.roomfile import consistency_problems
+from app.service.maintained import factor_for
 from app.service.scene_builder import build_scene, emitter_for
 from app.service.verdict import dark_allowance, zone_result_verdict, zone_verdict
 
@@ -114,6 +115,7 @@ def _emitters(room: Room, fixtures, dimming_pct: float | None = None, dz_m: floa
             f.hanging_height_m + dz_m,
             f.rotation_deg,
             f.dimming_pct if dimming_pct is None else dimming_pct,
+            factor_for(room, types[f.type_id]),
         )
         for f in fixtures
         if f.on

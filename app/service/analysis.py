@@ -20,6 +20,7 @@ from app.engine.compute import compute_scene
 from app.room import layout
 from app.room.library import crops_for
 from app.room.models import CanopyZone, Crop, Fixture, Room, RoomFile
+from app.service.maintained import output_basis
 from app.service.scene_builder import build_scene
 from app.service.verdict import allowance_info, dark_allowance, zone_verdict
 
@@ -186,6 +187,8 @@ def analyse(
     lights = compute_scene(scene.emitters, scene.grids, scene.enclosure, scene.boxes)
     compute_ms = (time.perf_counter() - t0) * 1000
     types = {t.id: t for t in room.fixture_types}
+    basis = output_basis(room)
+    type_factor = {b["type_id"]: b["factor"] for b in basis["types"]}
     hours = _fixture_hours(room)
     emitted = sum(e.flux_umol_s for e in scene.emitters)
 
@@ -212,7 +215,7 @@ def analyse(
         flux = float((ppfd * area).sum())
         direct_flux = float((zl.direct * area).sum())
         canopy_flux += flux
-        canopy_photons_mol_day += flux * photoperiod * 3600 / 1e6
+        canopy_photons_mol_day += flux * photoperiod * mx.DLI_FACTOR
         target_mid = 0.5 * (stage.dli_min + stage.dli_max)
         hours_for_min = float(mx.photoperiod_for_dli_h(stage.dli_min, stats["avg"])) if stats["avg"] > 0 else None
         dim_scale_mid = target_mid / dli_stats["avg"] if dli_stats["avg"] > 0 else None
@@ -342,7 +345,7 @@ def analyse(
                 "type_id": f.type_id,
                 "type_name": t.name,
                 "on": f.on,
-                "ppf_umol_s": t.ppf_umol_s * f.dimming_pct / 100 if f.on else 0.0,
+                "ppf_umol_s": t.ppf_umol_s * f.dimming_pct / 100 * type_factor[t.id] if f.on else 0.0,
                 "power_w": watts,
                 "dimming_pct": f.dimming_pct,
                 "circuit": f.circuit,
@@ -409,6 +412,19 @@ def analyse(
                 )
             )
 
+    for b in basis["types"]:
+        if b["beyond_limit"]:
+            warnings.append(
+                _warn(
+                    "maintenance_beyond_projection",
+                    "info",
+                    f"{b['name']}: {b['age_h']:,.0f} h is beyond the {b['limit_h']:,.0f} h that its maintenance "
+                    "data may be projected to (six times the test duration, IES TM-21); output is shown as at "
+                    f"{b['limit_h']:,.0f} h and is likely lower.",
+                    "Measure the canopy with a quantum sensor and enter the readings to fit the real output.",
+                )
+            )
+
     result: dict[str, Any] = {
         "room": {
             "name": room.name,
@@ -425,6 +441,7 @@ def analyse(
         "heat": heat,
         "circuits": circuits_out,
         "emitted_umol_s": emitted,
+        "output_basis": basis,
         "regions": [r for r in (_region_stats(zl, reg) for reg in regions for zl in lights) if r],
         "warnings": warnings,
         "verdict": {

@@ -7,8 +7,10 @@ import json
 from dataclasses import dataclass
 
 from app.engine import distributions as dist
+from app.engine.cache import MIB, BoundedCache
 from app.engine.scene import Box, Emitter, Enclosure, Grid
 from app.room.models import Beam, CanopyZone, FixtureType, Room
+from app.service.maintained import output_factors
 
 
 @dataclass(frozen=True)
@@ -19,26 +21,32 @@ class EngineScene:
     boxes: tuple[Box, ...]
 
 
-_dist_cache: dict[str, dist.Distribution] = {}
+_dist_cache = BoundedCache("distributions", max_bytes=8 * MIB)
 
 
 def distribution_for(beam: Beam) -> dist.Distribution:
     key = hashlib.sha1(json.dumps(beam.model_dump(mode="json"), sort_keys=True).encode()).hexdigest()
-    if key not in _dist_cache:
+    d = _dist_cache.get(key)
+    if d is None:
         if beam.kind == "lambertian":
             d = dist.lambertian()
         elif beam.kind == "cosine_power":
             d = dist.cosine_power(float(dist.cosine_exponent_from_beam_angle(beam.beam_angle_deg)))
         else:
             d = dist.tabulated(beam.polar_deg, beam.azimuth_deg, beam.relative_intensity, key=key)
-        if len(_dist_cache) > 256:
-            _dist_cache.clear()
-        _dist_cache[key] = d
-    return _dist_cache[key]
+        _dist_cache.put(key, d)
+    return d
 
 
 def emitter_for(
-    fixture_id: str, t: FixtureType, x_m: float, y_m: float, z_m: float, rotation_deg: float, dimming_pct: float
+    fixture_id: str,
+    t: FixtureType,
+    x_m: float,
+    y_m: float,
+    z_m: float,
+    rotation_deg: float,
+    dimming_pct: float,
+    output_factor: float = 1.0,
 ) -> Emitter:
     g = t.geometry
     return Emitter(
@@ -46,7 +54,7 @@ def emitter_for(
         x_m=x_m,
         y_m=y_m,
         z_m=z_m,
-        flux_umol_s=t.ppf_umol_s * dimming_pct / 100.0,
+        flux_umol_s=t.ppf_umol_s * dimming_pct / 100.0 * output_factor,
         distribution=distribution_for(t.beam),
         shape=g.kind,
         length_m=g.length_m,
@@ -67,10 +75,24 @@ def room_boxes(room: Room) -> tuple[Box, ...]:
     )
 
 
-def build_scene(room: Room) -> EngineScene:
+def build_scene(room: Room, dimming_pct: float | None = None) -> EngineScene:
+    """The engine's scene, each fixture at its type's output at the shown age (:mod:`app.service.maintained`).
+
+    dimming_pct : every fixture at this dimming instead of its own (the dimming when readings were taken).
+    """
     types = {t.id: t for t in room.fixture_types}
+    factors = output_factors(room)
     emitters = tuple(
-        emitter_for(f.id, types[f.type_id], f.x_m, f.y_m, f.hanging_height_m, f.rotation_deg, f.dimming_pct)
+        emitter_for(
+            f.id,
+            types[f.type_id],
+            f.x_m,
+            f.y_m,
+            f.hanging_height_m,
+            f.rotation_deg,
+            f.dimming_pct if dimming_pct is None else dimming_pct,
+            factors[f.type_id],
+        )
         for f in room.fixtures
         if f.on
     )

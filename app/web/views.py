@@ -11,7 +11,9 @@ from app.room.library import crops_for, fixture_library
 from app.room.models import WALL_FINISHES, RoomFile
 from app.room.roomfile import dump_room_file
 from app.room.storage import RoomStore
+from app.service.colours import colour_scale
 from app.service.drawings import heatmap_svg, plan_svg
+from app.service.meter import sheet_summary as meter_sheet_summary
 
 
 def room_list(store: RoomStore) -> dict[str, Any]:
@@ -27,6 +29,7 @@ def editor(room_id: str, room_file: RoomFile, analysis: dict[str, Any]) -> dict[
         "fixture_library": [t.model_dump(mode="json") for t in fixture_library().values()],
         "crops": {cid: c.model_dump(mode="json") for cid, c in crops_for(room_file).items()},
         "wall_finishes": {k: v.model_dump(mode="json") for k, v in WALL_FINISHES.items()},
+        "colour_scale": colour_scale(),
         "version": __version__,
     }
 
@@ -92,6 +95,7 @@ def sheet(room_id: str, room_file: RoomFile, analysis: dict[str, Any], paper: st
         "bill_of_materials": bom,
         "zones_by_id": {k: {"name": v.name} for k, v in zones.items()},
         "analysis": analysis,
+        "meter": meter_sheet_summary(room_file),
         "drawings": {
             "plan": plan_svg(room, analysis),
             "heatmaps": {z["id"]: heatmap_svg(z, room.display_units) for z in analysis["zones"]},

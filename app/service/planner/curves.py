@@ -13,6 +13,7 @@ from app.room import layout
 from app.room.library import crops_for
 from app.room.models import RoomFile
 from app.service.analysis import zone_photoperiod_h
+from app.service.maintained import factor_for
 from app.service.scene_builder import build_scene, emitter_for, zone_grid
 
 CURVE_POINTS_PER_SIDE = 60
@@ -48,13 +49,15 @@ def curves(rf: RoomFile, zone_id: str, fixture_ids: tuple[str, ...] = (), steps:
     for h in heights:
         dz = h - lowest
         em = tuple(
-            emitter_for(f.id, types[f.type_id], f.x_m, f.y_m, f.hanging_height_m + dz, f.rotation_deg, f.dimming_pct)
+            emitter_for(f.id, types[f.type_id], f.x_m, f.y_m, f.hanging_height_m + dz, f.rotation_deg, f.dimming_pct,
+                        factor_for(room, types[f.type_id]))
             for f in chosen
         )
         s = area_weighted_stats(ppfd(others + em), grid.cell_area_m2)
         rows.append({"above_canopy_m": float(h - z.canopy_height_m), "avg": s["avg"], "max": s["max"], "min": s["min"]})
     rest = ppfd(others)
-    own = ppfd(tuple(emitter_for(f.id, types[f.type_id], f.x_m, f.y_m, f.hanging_height_m, f.rotation_deg, 100.0)
+    own = ppfd(tuple(emitter_for(f.id, types[f.type_id], f.x_m, f.y_m, f.hanging_height_m, f.rotation_deg, 100.0,
+                                 factor_for(room, types[f.type_id]))
                      for f in chosen))
     dims = []
     for d in np.linspace(10, 100, 10):  # every chosen fixture set to d %: PPFD is linear in it

@@ -21,6 +21,7 @@ from app.engine.compute import canopy_slabs, compute_scene
 from app.engine.reflections import diffuse_map, patch_irradiance, radiosity_operator, specular_map
 from app.engine.scene import Grid
 from app.room.models import CanopyZone, FixtureType, Room
+from app.service.maintained import factor_for
 from app.service.planner.options import POINTS_PER_SIDE
 from app.service.scene_builder import build_scene, emitter_for, zone_grid
 
@@ -43,9 +44,17 @@ class PlanningLight:
         self.span = (min(heights_m), max(heights_m)) if heights_m else (0.0, 0.0)
         self._reference: dict[tuple, np.ndarray] = {}
         self._direct: dict[tuple, np.ndarray] = {}
+        self._factors: dict[str, float] = {}
+
+    def factor(self, t: FixtureType) -> float:
+        """The type's output at the age the room's figures are shown (maintained output), 1 when new."""
+        if t.id not in self._factors:
+            self._factors[t.id] = factor_for(self.room, t)
+        return self._factors[t.id]
 
     def _emitters(self, t: FixtureType, rot: float, height_m: float, pos) -> tuple:
-        return tuple(emitter_for(f"p{k}", t, x, y, height_m, rot, 100.0) for k, (x, y) in enumerate(pos))
+        k = self.factor(t)
+        return tuple(emitter_for(f"p{i}", t, x, y, height_m, rot, 100.0, k) for i, (x, y) in enumerate(pos))
 
     def direct(self, t: FixtureType, rot: float, height_m: float, pos) -> np.ndarray:
         """Sum of each fixture's direct map; a fixture's map is computed once per type, turn, height and place."""
@@ -54,7 +63,7 @@ class PlanningLight:
             key = (t.id, rot, round(height_m, 4), x, y)
             one = self._direct.get(key)
             if one is None:
-                em = (emitter_for("p", t, x, y, height_m, rot, 100.0),)
+                em = (emitter_for("p", t, x, y, height_m, rot, 100.0, self.factor(t)),)
                 one = compute_scene(em, (self.grid,), self.open_air, self.boxes)[0].ppfd.astype(float)
                 self._direct[key] = one
             out += one
