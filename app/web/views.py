@@ -14,6 +14,7 @@ from app.room.storage import RoomStore
 from app.service.colours import colour_scale
 from app.service.drawings import heatmap_svg, plan_svg
 from app.service.meter import sheet_summary as meter_sheet_summary
+from app.service.verdict import allowance_info
 
 
 def room_list(store: RoomStore) -> dict[str, Any]:
@@ -119,6 +120,7 @@ def planner(room_id: str, room_file: RoomFile) -> dict[str, Any]:
                     "name": t.name,
                     "ppf_umol_s": t.ppf_umol_s,
                     "power_w": t.power_w,
+                    "price": t.price,
                     "in_room": any(f.type_id == t.id for f in room.fixtures),
                 }
             )
@@ -128,5 +130,7 @@ def planner(room_id: str, room_file: RoomFile) -> dict[str, Any]:
         "room_file": dump_room_file(room_file),
         "fixture_types": types,
         "zones": [{"id": z.id, "name": z.name} for z in room.zones],
+        "verdict": allowance_info(room),
+        "currency": room.schedule.currency,
         "version": __version__,
     }

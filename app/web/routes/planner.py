@@ -6,6 +6,7 @@ from typing import Any
 
 from fastapi import APIRouter, Query, Request
 
+from app.room.library import fixture_library
 from app.service.planner import JobBoard, PlanOptions, check_setup, curves
 from app.web.bodies import PlanIn
 from app.web.deps import load_room, store_of
@@ -33,14 +34,32 @@ def _job_or_404(request: Request, job_id: str):
 )
 def start_plan(request: Request, room_id: str, body: PlanIn) -> dict[str, Any]:
     rf = load_room(store_of(request), room_id)
+    unknown = [t for t in body.type_ids if t not in fixture_library() and t not in {x.id for x in rf.room.fixture_types}]
+    if unknown:
+        raise ApiError(422, "invalid_request", f"type_ids: no fixture type '{unknown[0]}'")
     opts = PlanOptions(
         type_ids=tuple(body.type_ids),
         objective=body.objective,
+        target=body.target,
         max_power_w=body.max_power_w,
         min_clearance_m=body.min_clearance_m,
+        min_gap_m=body.min_gap_m,
+        years=body.years,
         seed=body.seed,
     )
     job = jobs_of(request).start(room_id, rf, opts)
+    return {"job_id": job.id, "revision": rf.revision}
+
+
+@router.post(
+    "/api/rooms/{room_id}/check-jobs",
+    status_code=202,
+    responses=ERRORS,
+    summary="Start check-my-setup in the background (progress, cancel); poll /api/plan-jobs/{job_id}",
+)
+def start_check(request: Request, room_id: str) -> dict[str, Any]:
+    rf = load_room(store_of(request), room_id)
+    job = jobs_of(request).start(room_id, rf, PlanOptions(), kind="check")
     return {"job_id": job.id, "revision": rf.revision}
 
 
