@@ -13,7 +13,10 @@ import time
 from dataclasses import replace
 from typing import Any
 
+import numpy as np
+
 from app.engine import electrical as elec
+from app.engine.metrics import value_at_area_share
 from app.room.library import fixture_library
 from app.room.models import RoomFile
 from app.room.roomfile import consistency_problems
@@ -21,12 +24,14 @@ from app.service.analysis import analyse
 from app.service.planner.apply import CircuitsFull, apply_layouts, full_load_w
 from app.service.planner.options import MIN_DIMMING, PlanOptions, ZoneLayout
 from app.service.planner.search import Cancelled, zone_search
+from app.service.scene_builder import zone_grid
 from app.service.verdict import allowance_info, meets_target
 
 DEFAULT_TYPES = ("panel-0.6",)
 DEPTH = 4  # combinations tried per proposal kept
 SETTLE_ROUNDS = 2
 SETTLE_STEP = 0.02
+TIGHTEN_MARGIN = 0.005
 
 
 def candidate_types(rf: RoomFile, opts: PlanOptions):
@@ -129,8 +134,9 @@ def check_proposal(rf: RoomFile, choice: list[ZoneLayout], opts: PlanOptions):
         problems = consistency_problems(candidate)
         if problems:
             return None, "; ".join(p.message for p in problems)
-        result = analyse(candidate, include_grids=False, with_fixes=False)
+        result = analyse(candidate, include_grids=True, with_fixes=False)
         if meets_target(result):
+            candidate, result, choice = tighten(rf, candidate, result, choice, opts)
             break
         settled = [settle(lay, z) for lay, z in zip(choice, result["zones"], strict=True)]
         if all(s is lay for s, lay in zip(settled, choice, strict=True)):
@@ -153,6 +159,30 @@ def check_proposal(rf: RoomFile, choice: list[ZoneLayout], opts: PlanOptions):
         "fixture_list": fixture_list(candidate),
         "cost": cost_figures(candidate, result, opts),
     }, ""
+
+
+def tighten(rf: RoomFile, candidate: RoomFile, result: dict[str, Any], choice: list[ZoneLayout], opts: PlanOptions):
+    """For the band's bottom: dim each zone down to what the room-grid analysis shows it needs, if that still
+    passes the whole-room analysis (the planning grid is coarser, so its darkest tenth reads a little low)."""
+    if opts.target != "bottom":
+        return candidate, result, choice
+    allowance = result["verdict"]["dark_allowance"]
+    lower = []
+    for lay, z in zip(choice, result["zones"], strict=True):
+        ppfd = np.asarray(z["grid"]["ppfd"], dtype=float)
+        grid = zone_grid(next(zz for zz in rf.room.zones if zz.id == z["id"]), rf.room.grid_spacing_m)
+        p_dark = value_at_area_share(ppfd, grid.cell_area_m2, allowance)
+        ratio = z["target"]["ppfd_min"] * (1 + TIGHTEN_MARGIN) / p_dark if p_dark > 0 else 1.0
+        d = max(MIN_DIMMING, math.ceil(round(lay.dimming * ratio * 100, 6)) / 100)
+        lower.append(replace(lay, dimming=d, power_w=lay.power_w * d / lay.dimming) if d < lay.dimming else lay)
+    if all(a is b for a, b in zip(lower, choice, strict=True)):
+        return candidate, result, choice
+    try:
+        tighter = apply_layouts(rf, lower)
+    except CircuitsFull:
+        return candidate, result, choice
+    again = analyse(tighter, include_grids=True, with_fixes=False)
+    return (tighter, again, lower) if meets_target(again) else (candidate, result, choice)
 
 
 def settle(lay: ZoneLayout, zone: dict[str, Any]) -> ZoneLayout:

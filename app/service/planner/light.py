@@ -3,9 +3,9 @@
 Every candidate's direct light (with obstacles' shadows) comes from the engine on a coarse planning grid. The
 light the walls return (mirror images for film, radiosity for matt paint) is too costly to compute for every
 candidate, and leaving it out makes a white room look 30-45 % darker than it is. It is estimated from the full
-model's wall light per µmol/s of one fixture of the type over the zone's centre, at the lowest and highest
-hanging heights searched (linear in between), scaled by the candidate's flux: matt-wall and mirror light is
-smooth and close to proportional to the flux. tests/service/test_planner_light.py checks the estimate against
+model's wall light of one fixture of the type over the zone's centre, at the lowest and highest hanging heights
+searched (linear in between), per µmol/s that misses the canopy directly, scaled by the candidate's own missed
+flux (the flux the walls can return: a spread array sends more to the walls than a central one). tests/service/test_planner_light.py checks the estimate against
 the full model; the leading candidates are then recomputed with the full model (:meth:`PlanningLight.full`, the
 engine's own direct, mirror-image and radiosity terms), which ranks them, and the proposals are analysed again,
 whole, on the room's own grid.
@@ -71,10 +71,9 @@ class PlanningLight:
 
     def flux_to_canopy(self, t: FixtureType, rot: float, height_m: float) -> float:
         """Canopy-average PPFD per µmol/s of one central fixture, walls included (for pruning hopeless counts)."""
-        ref = self.walls_per_flux(t, rot, height_m)
         centre = [(self.zone.x_m + self.zone.width_m / 2, self.zone.y_m + self.zone.length_m / 2)]
-        direct = self.direct(t, rot, height_m, centre) / t.ppf_umol_s
-        return float(((direct + ref) * self.area).sum() / self.area.sum())
+        one = self.estimate(t, rot, height_m, centre) / t.ppf_umol_s
+        return float((one * self.area).sum() / self.area.sum())
 
     def walls(self, emitters: tuple) -> np.ndarray:
         """The walls' light on the planning grid with the full model (mirror images or radiosity)."""
@@ -101,12 +100,18 @@ class PlanningLight:
         key = (t.id, rot, round(height_m, 4))
         if key not in self._reference:
             centre = [(self.zone.x_m + self.zone.width_m / 2, self.zone.y_m + self.zone.length_m / 2)]
-            self._reference[key] = self.walls(self._emitters(t, rot, height_m, centre)) / t.ppf_umol_s
+            missed = self.missed_flux(t, self.direct(t, rot, height_m, centre), 1)
+            self._reference[key] = self.walls(self._emitters(t, rot, height_m, centre)) / max(missed, 1e-9)
         return self._reference[key]
+
+    def missed_flux(self, t: FixtureType, direct: np.ndarray, count: int) -> float:
+        """Flux that does not land on this canopy directly [µmol/s]: what the walls can return."""
+        emitted = count * t.ppf_umol_s * self.factor(t)
+        return max(emitted - float((direct * self.area).sum()), 0.0)
 
     def estimate(self, t: FixtureType, rot: float, height_m: float, pos) -> np.ndarray:
         """Direct light from the engine plus the walls' light scaled from the reference."""
         est = self.direct(t, rot, height_m, pos)
         if self.walls_return:
-            est = est + self.walls_per_flux(t, rot, height_m) * (len(pos) * t.ppf_umol_s)
+            est = est + self.walls_per_flux(t, rot, height_m) * self.missed_flux(t, est, len(pos))
         return est

@@ -23,6 +23,8 @@ from app.service.planner.options import DAYS_PER_YEAR, MIN_DIMMING, PlanOptions,
 from app.service.verdict import dark_allowance
 
 FULL_MODEL_CANDIDATES = 5  # distinct arrangements per zone recomputed with the full model
+REFINE_STEPS = 16  # the leaders' heights are refined on this many rungs
+REFINE_KEEP = 2  # and the best few judged by the full model
 PRUNE_SLACK = 0.8  # a count is skipped only when its flux is 20 % away from what the band can use
 PLANNING_MARGIN = 0.015  # aim 1.5 % inside the band's edges: the proposals are analysed again on a finer grid
 
@@ -148,7 +150,7 @@ def hopeless(light: PlanningLight, target: ZoneTarget, t: FixtureType, rot: floa
 
 
 def rank_on_full_model(found, light: PlanningLight, target: ZoneTarget, types, opts, cancel) -> list[ZoneLayout]:
-    """The leading distinct arrangements (and their neighbours in height) recomputed with the full model."""
+    """The leading distinct arrangements, their height refined, recomputed with the full model and ranked."""
     by_type = {t.id: t for t in types}
     leaders, seen = [], set()
     for lay in found:
@@ -162,18 +164,34 @@ def rank_on_full_model(found, light: PlanningLight, target: ZoneTarget, types, o
         if cancel.is_set():
             raise Cancelled
         t = by_type[lay.type_id]
-        h = lay.above_canopy_m + light.zone.canopy_height_m
-        if not light.walls_return:  # the planning model is the full model here
-            lay.full_model = True
-            out.append(lay)
-            continue
-        ppfd = light.full(t, lay.rotation_deg, h, lay.positions)
-        dimmed = target.dimming(ppfd, light.area)
-        if dimmed is None:
-            continue
-        full = _layout(light.zone, t, lay.rotation_deg, lay.rows, lay.cols, lay.edge_weighted, lay.staggered,
-                       lay.positions, h, *dimmed, ppfd, target, True)
-        if opts.max_power_w is None or full.power_w <= opts.max_power_w:
-            out.append(full)
+        best = None
+        for h in refined_heights(light, target, t, lay):
+            ppfd = light.full(t, lay.rotation_deg, h, lay.positions) if light.walls_return else \
+                light.direct(t, lay.rotation_deg, h, lay.positions)
+            dimmed = target.dimming(ppfd, light.area)
+            if dimmed is None:
+                continue
+            full = _layout(light.zone, t, lay.rotation_deg, lay.rows, lay.cols, lay.edge_weighted, lay.staggered,
+                           lay.positions, h, *dimmed, ppfd, target, True)
+            if best is None or full.key(opts.objective) < best.key(opts.objective):
+                best = full
+        if best is not None and (opts.max_power_w is None or best.power_w <= opts.max_power_w):
+            out.append(best)
     out.sort(key=lambda r: r.key(opts.objective))
     return out
+
+
+def refined_heights(light: PlanningLight, target: ZoneTarget, t: FixtureType, lay: ZoneLayout) -> list[float]:
+    """The best heights of this arrangement on a fine ladder (planning estimate), for the full model to judge."""
+    low, high = light.span
+    ladder = np.linspace(low, high, REFINE_STEPS) if high > low else np.array([low])
+    hx, hy = half_extent(t, lay.rotation_deg)
+    scored = []
+    for h in ladder:
+        if not clear_of_obstacles(light.room, lay.positions, hx, hy, float(h)):
+            continue
+        dimmed = target.dimming(light.estimate(t, lay.rotation_deg, float(h), lay.positions), light.area)
+        if dimmed is not None:
+            scored.append((dimmed[0], round(float(h), 3)))
+    scored.sort()
+    return [h for _, h in scored[:REFINE_KEEP]] or [lay.above_canopy_m + light.zone.canopy_height_m]
