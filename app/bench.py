@@ -231,7 +231,8 @@ def main(argv: list[str] | None = None) -> int:
     ap.add_argument("--repeats", type=int, default=9)
     ap.add_argument("--no-farm", action="store_true", help="skip the 1,000-fixture vertical farm")
     ap.add_argument("--json", type=Path, help="also write the figures to this file")
-    ap.add_argument("--no-planner", action="store_true", help="skip the planner timings")
+    ap.add_argument("--no-planner", action="store_true", help="skip the planner and check-my-setup timings")
+    ap.add_argument("--planner-repeats", type=int, default=3, help="runs per planner timing (median)")
     ap.add_argument("--browser", action="store_true", help="also time pointer move to repainted map in Chromium")
     ap.add_argument("--no-year", action="store_true", help="skip the cycle-and-year page timing")
     args = ap.parse_args(argv)
@@ -272,23 +273,9 @@ def main(argv: list[str] | None = None) -> int:
             + (f"{r['brute_ms']:>10.0f}{r['speedup']:>8.1f}x{r['rms_vs_brute']:>9.2%}" if "brute_ms" in r else "")
         )
     if not args.no_planner:
-        from app.service.planner import PlanOptions, plan
+        from app.bench_planner import planner_bench
 
-        for name, types in (
-            ("hobby-tent-peppers", ("bararray-4x0.6", "panel-0.6")),
-            ("basement-two-benches", ("panel-0.6", "bararray-6x1.0")),
-        ):
-            rf = parse_room_file((asset_dir("sample_rooms") / f"{name}.json").read_bytes())
-            runs = []
-            for _ in range(3):
-                clear_all_caches()  # every run starts cold: no footprint from an earlier run is reused
-                runs.append(plan(rf, PlanOptions(type_ids=types)))
-            first = statistics.median(r["first_feasible_s"] or float("nan") for r in runs)
-            final = statistics.median(r["elapsed_s"] for r in runs)
-            print(
-                f"planner, {name} ({', '.join(types)}): first feasible layout {first:.2f} s, final answer {final:.2f} s"
-            )
-            results.append({"scene": f"planner {name}", "first_feasible_s": first, "final_s": final})
+        results += planner_bench(args.planner_repeats, clear_all_caches)
     if not args.no_year:
         results.append(bench_year())
     if args.browser:

@@ -56,10 +56,17 @@ class PlanningLight:
         k = self.factor(t)
         return tuple(emitter_for(f"p{i}", t, x, y, height_m, rot, 100.0, k) for i, (x, y) in enumerate(pos))
 
-    def direct(self, t: FixtureType, rot: float, height_m: float, pos) -> np.ndarray:
-        """Sum of each fixture's direct map; a fixture's map is computed once per type, turn, height and place."""
+    def direct(self, t: FixtureType, rot: float, height_m: float, pos, exact: bool = False) -> np.ndarray:
+        """Sum of each fixture's direct map; a fixture's map is computed once per type, turn, height and place.
+
+        For the search (not ``exact``) places are taken on a lattice of half the planning spacing, so the many
+        arrangements share their fixtures' maps; the full model uses the exact places.
+        """
         out = np.zeros_like(self.area)
+        step = 0.5 * self.grid.spacing_m
         for x, y in pos:
+            if not exact:
+                x, y = round(round(x / step) * step, 4), round(round(y / step) * step, 4)
             key = (t.id, rot, round(height_m, 4), x, y)
             one = self._direct.get(key)
             if one is None:
@@ -87,7 +94,7 @@ class PlanningLight:
         return diffuse_map(enc, self.grid, exitance).astype(float)
 
     def full(self, t: FixtureType, rot: float, height_m: float, pos) -> np.ndarray:
-        return self.direct(t, rot, height_m, pos) + self.walls(self._emitters(t, rot, height_m, pos))
+        return self.direct(t, rot, height_m, pos, exact=True) + self.walls(self._emitters(t, rot, height_m, pos))
 
     def walls_per_flux(self, t: FixtureType, rot: float, height_m: float) -> np.ndarray:
         """Wall light per µmol/s emitted, from one fixture over the zone's centre (full model), by height."""

@@ -22,9 +22,9 @@ from app.service.planner.light import PlanningLight
 from app.service.planner.options import DAYS_PER_YEAR, MIN_DIMMING, PlanOptions, ZoneLayout
 from app.service.verdict import dark_allowance
 
-FULL_MODEL_CANDIDATES = 5  # distinct arrangements per zone recomputed with the full model
+FULL_MODEL_CANDIDATES = 4  # distinct arrangements per zone recomputed with the full model
 REFINE_STEPS = 16  # the leaders' heights are refined on this many rungs
-REFINE_KEEP = 2  # and the best few judged by the full model
+REFINE_KEEP = 1  # and the best few judged by the full model
 PRUNE_SLACK = 0.8  # a count is skipped only when its flux is 20 % away from what the band can use
 PLANNING_MARGIN = 0.015  # aim 1.5 % inside the band's edges: the proposals are analysed again on a finer grid
 
@@ -167,7 +167,7 @@ def rank_on_full_model(found, light: PlanningLight, target: ZoneTarget, types, o
         best = None
         for h in refined_heights(light, target, t, lay):
             ppfd = light.full(t, lay.rotation_deg, h, lay.positions) if light.walls_return else \
-                light.direct(t, lay.rotation_deg, h, lay.positions)
+                light.direct(t, lay.rotation_deg, h, lay.positions, exact=True)
             dimmed = target.dimming(ppfd, light.area)
             if dimmed is None:
                 continue
