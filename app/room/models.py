@@ -175,10 +175,15 @@ class FixtureType(Strict):
     ppf_umol_s: float = Field(gt=0, le=20000, description="Photosynthetic photon flux at full power [µmol/s].")
     power_w: float = Field(gt=0, le=10000, description="Input power at full power [W].")
     weight_kg: float | None = Field(default=None, ge=0, le=500)
-    price: float | None = Field(
-        default=None, ge=0, le=1_000_000, description="Purchase price of one fixture, in the room's currency."
-    )
     notes: str = Field(default="", max_length=1000)
+    hanging_points_m: list[tuple[Annotated[float, Field(ge=-2.5, le=2.5)], Annotated[float, Field(ge=-2.5, le=2.5)]]] | None = Field(
+        default=None,
+        max_length=limits.MAX_HANGING_POINTS,
+        description="Where it hangs from, (x, y) in its own frame from its centre [m]; none: the sheet's default.",
+    )
+    cord_note: str = Field(default="", max_length=200, description="Power cord: length, plug.")
+    driver_note: str = Field(default="", max_length=200, description="Driver: built in or remote, its place.")
+    price: float | None = Field(default=None, ge=0, le=1_000_000, description="Price each, in the room's currency.")
     maintenance: OutputMaintenance | None = Field(
         default=None, description="Rated or measured output maintenance; none: output does not fall with age."
     )
@@ -368,6 +373,15 @@ class Crop(Strict):
     source: str = Field(default="", max_length=600)
 
 
+class Entry(Strict):
+    """Where people come in: the plan's fixed reference (a door, a tent's zip)."""
+
+    side: Side = "front"
+    offset_m: Metres | None = Field(default=None, description="Centre along that wall from its left/front end.")
+    width_m: float | None = Field(
+        default=None, gt=0, le=limits.MAX_ROOM_SIDE_M, description="Opening width; none: 0.8 m or half a short wall."
+    )
+    label: str = Field(default="Entry", min_length=1, max_length=40)
 class OutputAge(Strict):
     """The fixtures' age and dirt, and at which age figures are shown."""
 
@@ -478,6 +492,7 @@ class Room(Strict):
         le=0.5,
         description="Share of a zone's area allowed below the DLI band (0-0.5); none: Leafcast's default 0.10.",
     )
+    entry: Entry = Field(default_factory=Entry, description="The door or entry drawn on the sheet's plan.")
     output_age: OutputAge = Field(default_factory=OutputAge)
     readings: list[ReadingSet] = Field(default_factory=list, max_length=limits.MAX_READING_SETS)
     payback: PaybackPlan | None = None

@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import logging
 import threading
 import time
 import uuid
@@ -10,6 +11,7 @@ from dataclasses import dataclass, field
 from typing import Any
 
 from app.room.models import RoomFile
+from app.service.jobs_pool import BoundedExecutor
 from app.service.planner.check_setup import check_setup
 from app.service.planner.combine import plan
 from app.service.planner.options import PlanOptions
@@ -32,6 +34,7 @@ class Job:
     result: dict[str, Any] | None = None
     cancel: threading.Event = field(default_factory=threading.Event)
     started: float = field(default_factory=time.time)
+    position: Any = None  # () -> place in the executor's queue (0 = running), set by the JobBoard
 
     def public(self) -> dict[str, Any]:
         return {
@@ -47,16 +50,20 @@ class Job:
             "cancelled": self.cancelled,
             "error": self.error,
             "result": self.result,
+            "queue_position": self.position() if self.position and not self.done else None,
         }
 
 
 class JobBoard:
-    """Jobs run in background threads; at most ``keep`` are kept (the oldest are cancelled and dropped)."""
+    """Jobs run on bounded executors (one planner and one check at a time, the rest queued, a full queue
+    refuses with :class:`~app.service.jobs_pool.QueueFull`); at most ``keep`` jobs are kept."""
 
-    def __init__(self, keep: int = 16) -> None:
+    def __init__(self, keep: int = 16, workers: int = 1) -> None:
         self.jobs: dict[str, Job] = {}
         self.keep = keep
         self.lock = threading.Lock()
+        self.pool = BoundedExecutor(workers=workers, max_queued=keep, name="plan")
+        self.check_pool = BoundedExecutor(workers=workers, max_queued=keep, name="check")
 
     def start(self, room_id: str, rf: RoomFile, opts: PlanOptions, kind: str = "plan") -> Job:
         work: Callable[..., dict[str, Any]] = plan if kind == "plan" else check_setup
@@ -75,16 +82,26 @@ class JobBoard:
 
         def run():
             try:
+                if job.cancel.is_set():
+                    raise Cancelled
                 job.result = work(rf, opts, progress, job.cancel)
             except Cancelled:
                 job.cancelled = True
-            except Exception as exc:  # reported to the page, never a traceback
+            except Exception as exc:  # reported to the page, never a traceback; logged with it
+                logging.getLogger("leafcast.planner").exception("%s job %s failed", kind, job.id)
                 job.error = f"the {'planner' if kind == 'plan' else 'check'} stopped: {exc}"
             finally:
                 job.done = True
                 job.progress = 1.0 if not job.cancelled else job.progress
 
-        threading.Thread(target=run, daemon=True, name=f"{kind}-{job.id}").start()
+        pool = self.pool if kind == "plan" else self.check_pool
+        job.position = lambda: pool.position(job.id)
+        try:
+            pool.submit(job.id, run)
+        except Exception:
+            with self.lock:
+                self.jobs.pop(job.id, None)
+            raise
         return job
 
     def get(self, job_id: str) -> Job | None:
