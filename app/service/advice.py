@@ -31,8 +31,9 @@ ZONE_CODES = ("dark_zone", "hot_spot", "over_target")
 PERIOD_CODES = ("continuous_light", "short_dark_period", "short_day_night")
 HOUR_STEP_H = 0.25  # timers are set in quarter hours
 MIN_FIX_CLEARANCE_M = 0.10  # least height above the canopy a re-hang fix proposes (common practice, no source)
-HEIGHT_STEPS = 10
+HEIGHT_STEPS = 8
 MIN_DIMMING_PCT = 10
+LIVE_KINDS = 2  # the live analysis offers a photoperiod or one dimming; check-my-setup every kind
 RETRIES = 3  # candidates tried, nearest first, before a kind of fix is given up
 SERIOUS = ("warning", "error")
 
@@ -279,15 +280,21 @@ def zone_case(rf: RoomFile, base: dict[str, Any], index: int, ppfd: np.ndarray, 
                     stage.ppfd_stress_umol_m2_s, longest, area, dark_allowance(room), ppfd)
 
 
-def zone_fixes(rf: RoomFile, base: dict[str, Any], case: ZoneCase) -> tuple[list[dict], list[str]]:
-    """Verified fixes for one zone (at most one of each kind) and why the other kinds cannot help."""
+def zone_fixes(rf: RoomFile, base: dict[str, Any], case: ZoneCase, every_kind: bool = True):
+    """Verified fixes for one zone (at most one of each kind) and why the other kinds cannot help.
+
+    Kinds are tried cheapest first (photoperiod, dimming, height); unless ``every_kind``, the first that works
+    is the answer, which keeps the editor's live analysis quick.
+    """
     fixes, why_not = [], []
     kinds = (
         ("photoperiod", lambda: photoperiod_candidates(case)),
         ("dimming", lambda: dimming_candidates(case, rf.room)),
         ("height", lambda: height_candidates(case, rf.room)),
     )
-    for kind, make in kinds if case.settings_fail else kinds[:1]:
+    # The live analysis tries the settings that need no new hanging position; check-my-setup tries all.
+    tried = kinds if every_kind else kinds[:LIVE_KINDS]
+    for kind, make in tried if case.settings_fail else kinds[:1]:
         candidates, why = make()
         for fix in candidates[:RETRIES]:
             fig = verify(rf, base, fix, case.zone.id)
@@ -295,6 +302,8 @@ def zone_fixes(rf: RoomFile, base: dict[str, Any], case: ZoneCase) -> tuple[list
                 fixes.append({**fix, "kind": kind, "verified": True, "result": fig,
                               "text": describe(fix, fig, case.zone.name)})
                 break
+        if fixes and not every_kind:
+            break
         else:
             if candidates:
                 why = "the settings that fit this zone cause a problem elsewhere"
@@ -302,7 +311,8 @@ def zone_fixes(rf: RoomFile, base: dict[str, Any], case: ZoneCase) -> tuple[list
     return fixes, why_not
 
 
-def attach_fixes(rf: RoomFile, result: dict[str, Any], grids: list[np.ndarray], areas: list[np.ndarray]) -> None:
+def attach_fixes(rf: RoomFile, result: dict[str, Any], grids: list[np.ndarray], areas: list[np.ndarray],
+                 every_kind: bool = False) -> None:
     """Give each zone warning its verified fixes (``fixes``) and a sentence (``fix``) that says what to do."""
     allowance = result["verdict"]["dark_allowance"]
     for i, z in enumerate(result["zones"]):
@@ -312,7 +322,7 @@ def attach_fixes(rf: RoomFile, result: dict[str, Any], grids: list[np.ndarray], 
             continue
         case = zone_case(rf, result, i, grids[i], areas[i])
         case.settings_fail = failing
-        fixes, why_not = zone_fixes(rf, result, case)
+        fixes, why_not = zone_fixes(rf, result, case, every_kind)
         z["fixes"] = fixes
         z["no_fix_because"] = why_not
         for w in result["warnings"]:

@@ -173,12 +173,13 @@ def analyse(
     with_budget: bool = False,
     regions: tuple[Region, ...] = (),
     include_grids: bool = True,
-    with_fixes: bool = True,
+    with_fixes: bool | str = True,
 ) -> dict[str, Any]:
     """The whole analysis of a room: per-zone maps and figures, energy, circuits, warnings.
 
-    With ``with_fixes`` each zone that misses its target gets fixes checked by analysing the changed room
-    again (:mod:`app.service.advice`); the verdict is :mod:`app.service.verdict`'s, with the room's allowance.
+    With ``with_fixes`` each zone that misses its target gets a fix checked by analysing the changed room
+    again (:mod:`app.service.advice`): the first kind that works, or one of each kind with ``"all"``. The
+    verdict is :mod:`app.service.verdict`'s, with the room's allowance.
     """
     t0 = time.perf_counter()
     room = room_file.room
@@ -467,6 +468,12 @@ def analyse(
     if with_fixes:
         from app.service.advice import attach_fixes  # advice re-analyses through this module
 
-        attach_fixes(room_file, result, [zl.ppfd.astype(float) for zl in lights], [zl.grid.cell_area_m2 for zl in lights])
+        attach_fixes(
+            room_file,
+            result,
+            [zl.ppfd.astype(float) for zl in lights],
+            [zl.grid.cell_area_m2 for zl in lights],
+            every_kind=with_fixes == "all",
+        )
     result["elapsed_ms"] = (time.perf_counter() - t0) * 1000
     return result

@@ -57,7 +57,7 @@ def check_setup(rf: RoomFile, opts: PlanOptions | None = None, progress=None, ca
     """Per zone: meets the target or not, with the checked changes that make it meet it."""
     opts = opts or PlanOptions()
     cancel = cancel or threading.Event()
-    base = analyse(rf, include_grids=False)
+    base = analyse(rf, include_grids=False, with_fixes="all")
     room = rf.room
     out = []
     for i, (z, a) in enumerate(zip(room.zones, base["zones"], strict=True)):
