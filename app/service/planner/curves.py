@@ -28,7 +28,7 @@ def curves(rf: RoomFile, zone_id: str, fixture_ids: tuple[str, ...] = (), steps:
         raise ValueError(f"no zone '{zone_id}'")
     lit = layout.fixtures_lighting(room.zones, room.fixtures, zone_id)
     ids = set(fixture_ids) or {f.id for f in lit}
-    chosen = [f for f in room.fixtures if f.id in ids and f.on]
+    chosen = [f for f in room.fixtures if f.id in ids]
     if not chosen:
         raise ValueError(f"no fixture lights zone '{zone_id}'")
     scene = build_scene(room)
@@ -52,13 +52,14 @@ def curves(rf: RoomFile, zone_id: str, fixture_ids: tuple[str, ...] = (), steps:
             emitter_for(f.id, types[f.type_id], f.x_m, f.y_m, f.hanging_height_m + dz, f.rotation_deg, f.dimming_pct,
                         factor_for(room, types[f.type_id]))
             for f in chosen
+            if f.on
         )
         s = area_weighted_stats(ppfd(others + em), grid.cell_area_m2)
         rows.append({"above_canopy_m": float(h - z.canopy_height_m), "avg": s["avg"], "max": s["max"], "min": s["min"]})
     rest = ppfd(others)
     own = ppfd(tuple(emitter_for(f.id, types[f.type_id], f.x_m, f.y_m, f.hanging_height_m, f.rotation_deg, 100.0,
                                  factor_for(room, types[f.type_id]))
-                     for f in chosen))
+                     for f in chosen if f.on))
     dims = []
     for d in np.linspace(10, 100, 10):  # every chosen fixture set to d %: PPFD is linear in it
         s = area_weighted_stats(rest + own * d / 100, grid.cell_area_m2)
@@ -75,4 +76,5 @@ def curves(rf: RoomFile, zone_id: str, fixture_ids: tuple[str, ...] = (), steps:
         "stress_ppfd": stage.ppfd_stress_umol_m2_s,
         "current_above_canopy_m": lowest - z.canopy_height_m,
         "current_dimming_pct": float(np.mean([f.dimming_pct for f in chosen])),
+        "fixtures_off": sorted(f.id for f in chosen if not f.on),
     }
