@@ -222,6 +222,8 @@ def consistency_problems(room_file: RoomFile) -> list[Problem]:
             ):
                 p.append(Problem(at, f"fixture '{f.id}' is inside obstacle '{o.id}'"))
 
+    p += reading_problems(room)
+
     p += [Problem(field, reason) for field, reason in year_problems(room_file)]
     points = grid_point_count(room)
     if points > limits.MAX_GRID_POINTS:
@@ -232,6 +234,46 @@ def consistency_problems(room_file: RoomFile) -> list[Problem]:
                 f"{limits.MAX_GRID_POINTS:,}: use a coarser spacing",
             )
         )
+    return p
+
+
+def reading_problems(room: Room) -> list[Problem]:
+    """Readings name a zone of the room and lie inside it (a grid must fit, every point too)."""
+    p = _duplicates("room.readings", [r.id for r in room.readings])
+    zones = {z.id: z for z in room.zones}
+    tol = _EDGE_TOLERANCE_M
+    for i, r in enumerate(room.readings):
+        at = f"room.readings[{i}]"
+        z = zones.get(r.zone_id)
+        if z is None:
+            p.append(Problem(f"{at}.zone_id", f"unknown zone '{r.zone_id}'; the room has {sorted(zones)}"))
+            continue
+        x0, x1, y0, y1 = z.x_m - tol, z.x_m + z.width_m + tol, z.y_m - tol, z.y_m + z.length_m + tol
+        if r.grid is not None:
+            g = r.grid
+            rows, cols = len(g.values), len(g.values[0])
+            far_x = g.origin_x_m + (cols - 1) * g.spacing_x_m
+            far_y = g.origin_y_m + (rows - 1) * g.spacing_y_m
+            if not (x0 <= g.origin_x_m and far_x <= x1 and y0 <= g.origin_y_m and far_y <= y1):
+                p.append(
+                    Problem(
+                        f"{at}.grid",
+                        f"the grid of {rows} rows x {cols} columns does not fit zone '{z.id}': it spans "
+                        f"x {g.origin_x_m:.3g}-{far_x:.3g} m, y {g.origin_y_m:.3g}-{far_y:.3g} m, the zone "
+                        f"x {z.x_m:.3g}-{z.x_m + z.width_m:.3g} m, y {z.y_m:.3g}-{z.y_m + z.length_m:.3g} m",
+                    )
+                )
+            if all(v is None for row in g.values for v in row):
+                p.append(Problem(f"{at}.grid.values", "the grid holds no reading"))
+        for j, pt in enumerate(r.points):
+            if not (x0 <= pt.x_m <= x1 and y0 <= pt.y_m <= y1):
+                p.append(
+                    Problem(
+                        f"{at}.points[{j}]",
+                        f"reading at ({pt.x_m:.3g}, {pt.y_m:.3g}) m is outside zone '{z.id}' "
+                        f"(x {z.x_m:.3g}-{z.x_m + z.width_m:.3g} m, y {z.y_m:.3g}-{z.y_m + z.length_m:.3g} m)",
+                    )
+                )
     return p
 
 

@@ -36,6 +36,7 @@ from app.room.library import crops_for, fixture_library
 from app.room.models import CanopyZone, Fixture, FixtureType, Room, RoomFile
 from app.room.roomfile import consistency_problems, fixture_half_extent_m
 from app.service.analysis import analyse, zone_photoperiod_h
+from app.service.maintained import factor_for
 from app.service.scene_builder import build_scene, emitter_for, room_boxes, zone_grid
 
 DARK_ALLOWANCE = 0.10  # share of a zone allowed below the band (Leafcast default, no source)
@@ -199,6 +200,7 @@ def _zone_search(
                     for edge in (False, True):
                         for stagger in (False, True) if rows > 1 and cols > 1 else (False,):
                             combos.append((t, rot, rows, cols, edge, stagger, hx, hy))
+    kept = {t.id: factor_for(room, t) for t in types}  # output at the age the room's figures are shown
     rng = np.random.default_rng(opts.seed)
     order = rng.permutation(len(combos))  # the seed only orders the search; the ranking is total
     total = len(combos) * len(heights)
@@ -215,7 +217,7 @@ def _zone_search(
             done += 1
             if not _fits(room, zone, t, rot, pos, h):
                 continue
-            emitters = tuple(emitter_for(f"p{k}", t, x, y, h, rot, 100.0) for k, (x, y) in enumerate(pos))
+            emitters = tuple(emitter_for(f"p{k}", t, x, y, h, rot, 100.0, kept[t.id]) for k, (x, y) in enumerate(pos))
             ppfd = compute_scene(emitters, (grid,), enclosure, scene.boxes)[0].ppfd.astype(float)
             p_dark = value_at_area_share(ppfd, area, DARK_ALLOWANCE)
             stats = area_weighted_stats(ppfd, area)
@@ -577,7 +579,16 @@ def curves(rf: RoomFile, zone_id: str, fixture_ids: tuple[str, ...] = (), steps:
     for h in heights:
         dz = h - lowest
         em = tuple(
-            emitter_for(f.id, types[f.type_id], f.x_m, f.y_m, f.hanging_height_m + dz, f.rotation_deg, f.dimming_pct)
+            emitter_for(
+                f.id,
+                types[f.type_id],
+                f.x_m,
+                f.y_m,
+                f.hanging_height_m + dz,
+                f.rotation_deg,
+                f.dimming_pct,
+                factor_for(room, types[f.type_id]),
+            )
             for f in chosen
             if f.on
         )

@@ -13,6 +13,7 @@ from app.room.roomfile import dump_room_file
 from app.room.storage import RoomStore
 from app.service.colours import colour_scale
 from app.service.drawings import heatmap_svg, plan_svg
+from app.service.meter import sheet_summary as meter_sheet_summary
 
 
 def room_list(store: RoomStore) -> dict[str, Any]:
@@ -94,6 +95,7 @@ def sheet(room_id: str, room_file: RoomFile, analysis: dict[str, Any], paper: st
         "bill_of_materials": bom,
         "zones_by_id": {k: {"name": v.name} for k, v in zones.items()},
         "analysis": analysis,
+        "meter": meter_sheet_summary(room_file),
         "drawings": {
             "plan": plan_svg(room, analysis),
             "heatmaps": {z["id"]: heatmap_svg(z, room.display_units) for z in analysis["zones"]},
