@@ -22,12 +22,26 @@ def _serve(args) -> int:
         host=args.host,
         port=args.port,
         seed_samples=not args.no_samples,
+        max_analysis_s=args.max_analysis_s,
+        analysis_workers=args.analysis_workers,
     )
     app = create_app(settings)
     print(f"Leafcast {__version__}: rooms in {settings.data_dir}")
+    for room_id in app.state.restored:
+        print(f"Room '{room_id}' had no file after a crash: restored from its previous revision.")
     print(f"Open http://{args.host}:{args.port}/ in a browser (Ctrl+C stops).", flush=True)
     uvicorn.run(app, host=args.host, port=args.port, log_level="warning")
     return 0
+
+
+def _positive_seconds(text: str) -> float:
+    try:
+        value = float(text)
+    except ValueError:
+        value = float("nan")
+    if not 0 < value <= 3600:
+        raise argparse.ArgumentTypeError(f"'{text}' is not a number of seconds between 0 and 3600")
+    return value
 
 
 def _load(path: str):
@@ -158,6 +172,20 @@ def main(argv: list[str] | None = None) -> int:
     s.add_argument("--port", type=int, default=8000)
     s.add_argument("--data-dir", default=None, help="where rooms are stored (default: the user data folder)")
     s.add_argument("--no-samples", action="store_true", help="do not copy the sample rooms into an empty data folder")
+    s.add_argument(
+        "--max-analysis-s",
+        type=_positive_seconds,
+        default=20.0,
+        help="time budget of one analysis in seconds: longer ones are refused up front or stopped (default 20)",
+    )
+    s.add_argument(
+        "--analysis-workers",
+        type=int,
+        choices=range(1, 9),
+        default=2,
+        metavar="N",
+        help="analyses computed at once, 1-8 (default 2); pages and the room list never wait for them",
+    )
     s.set_defaults(func=_serve)
     c = sub.add_parser("check", help="validate a room file")
     c.add_argument("file")

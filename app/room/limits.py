@@ -19,3 +19,6 @@ MAX_READING_POINTS = 2000
 MAX_READING_ROWS = 100
 MAX_READING_VALUE = 250_000.0  # lx: full sun is about 100,000-130,000 lx
 MAX_PPFD_READING = 5000.0  # µmol m⁻² s⁻¹: full sun is about 2,000
+MAX_NESTING_DEPTH = 64  # a room file nests about 6 deep; refused before parsing (no recursion blow-up)
+MAX_NUMBER_DIGITS = 30  # integer digits: no measurement needs more
+MAX_NUMBER_CHARS = 64  # a decimal number's characters (digits, point, exponent)
