@@ -113,7 +113,6 @@ def _every_operation(api, room_doc):
     zid = {**rid, "zone_id": room_doc["room"]["zones"][0]["id"]}
     call("GET", "/api/rooms/{room_id}/zones/{zone_id}/grid.csv", path_parameters=zid)
     call("GET", "/api/rooms/{room_id}/zones/{zone_id}/map.svg", path_parameters=zid)
-    call("GET", "/api/rooms/{room_id}/plan.dxf", path_parameters=rid)
     call("GET", "/api/rooms/{room_id}/check", path_parameters=rid)
     call("GET", "/api/rooms/{room_id}/curves", path_parameters=rid, query={"zone": zid["zone_id"]})
     job = call("POST", "/api/rooms/{room_id}/plan", path_parameters=rid, body={}, media_type="application/json")
