@@ -23,6 +23,7 @@ from pydantic import ValidationError
 from app.room import layout, limits
 from app.room.library import crops_for
 from app.room.models import FORMAT_NAME, FORMAT_VERSION, Room, RoomFile
+from app.room.year_checks import year_problems
 
 _EDGE_TOLERANCE_M = 0.001  # a fixture's edge may touch a wall
 
@@ -223,6 +224,7 @@ def consistency_problems(room_file: RoomFile) -> list[Problem]:
 
     p += reading_problems(room)
 
+    p += [Problem(field, reason) for field, reason in year_problems(room_file)]
     points = grid_point_count(room)
     if points > limits.MAX_GRID_POINTS:
         p.append(

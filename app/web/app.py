@@ -24,9 +24,9 @@ from app.service.planner import JobBoard
 from app.settings import Settings
 from app.web.errors import install_error_handlers
 from app.web.middleware import BodyLimit, LocalOnly
-from app.web.routes import analysis, library, meter, pages, photometry, planner, rooms
+from app.web.routes import analysis, library, meter, pages, photometry, planner, rooms, year
 
-ROUTERS = (pages, rooms, analysis, planner, photometry, library, meter)
+ROUTERS = (pages, rooms, analysis, planner, photometry, library, meter, year)
 
 
 def create_app(settings: Settings | None = None) -> FastAPI:
