@@ -362,3 +362,17 @@ def test_planner_curves_use_the_maintained_output():
     aged = curves(maintained_doc(hours_in_service_h=36000), "bench")
     assert_allclose([r["avg"] for r in aged["heights"]], [0.9 * r["avg"] for r in new["heights"]], rtol=1e-5)
     assert_allclose([r["avg"] for r in aged["dimming"]], [0.9 * r["avg"] for r in new["dimming"]], rtol=1e-5)
+
+
+def test_payback_does_not_age_the_fixtures_twice():
+    # The payback ages the fixtures with its own L90 hours; the room's output age must not be applied on top.
+    from app.service.payback import payback_report
+
+    doc = sample_doc("greenhouse-lettuce-bench")
+    base = payback_report(parse_room_file(to_json_bytes(doc)))
+    for t in doc["room"]["fixture_types"]:
+        t["maintenance"] = {"rated_percent": 90, "rated_hours_h": 36000}
+    doc["room"]["output_age"] = {"hours_in_service_h": 30000, "dirt_factor": 0.9}
+    aged = payback_report(parse_room_file(to_json_bytes(doc)))
+    assert_allclose(aged["now"]["mol_by_year"], base["now"]["mol_by_year"], rtol=1e-9)
+    assert_allclose(aged["variant"]["mol_by_year"], base["variant"]["mol_by_year"], rtol=1e-9)

@@ -67,6 +67,9 @@ def payback_report(room_file: RoomFile) -> dict[str, Any] | None:
     plan = room_file.room.payback
     if plan is None:
         return None
+    # The payback ages both fixture sets itself (hours_run_now, rated L90 hours): analyse them new, so the
+    # room's own output age (app.service.maintained) is not applied a second time.
+    room_file = _at_installation(room_file)
     now_result = analyse(room_file, include_grids=False)
     try:
         variant, replaced = _variant_room(room_file)
@@ -124,6 +127,11 @@ def payback_report(room_file: RoomFile) -> dict[str, Any] | None:
         **result,
         "currency": room_file.room.schedule.currency,
     }
+
+
+def _at_installation(room_file: RoomFile) -> RoomFile:
+    age = room_file.room.output_age.model_copy(update={"shown_at": "installation"})
+    return room_file.model_copy(update={"room": room_file.room.model_copy(update={"output_age": age})})
 
 
 def _without(room_file: RoomFile, fixture_ids: list[str]) -> RoomFile:
