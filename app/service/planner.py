@@ -21,6 +21,7 @@ the band (Leafcast's own definition; no published pass mark exists).
 
 from __future__ import annotations
 
+import logging
 import math
 import threading
 import time
@@ -36,6 +37,7 @@ from app.room.library import crops_for, fixture_library
 from app.room.models import CanopyZone, Fixture, FixtureType, Room, RoomFile
 from app.room.roomfile import consistency_problems, fixture_half_extent_m
 from app.service.analysis import analyse, zone_photoperiod_h
+from app.service.jobs_pool import BoundedExecutor
 from app.service.maintained import factor_for
 from app.service.scene_builder import build_scene, emitter_for, room_boxes, zone_grid
 
@@ -635,11 +637,13 @@ class Job:
     result: dict[str, Any] | None = None
     cancel: threading.Event = field(default_factory=threading.Event)
     started: float = field(default_factory=time.time)
+    position: Any = None  # () -> place in the executor's queue (0 = running), set by the JobBoard
 
     def public(self) -> dict[str, Any]:
         return {
             "id": self.id,
             "room_id": self.room_id,
+            "queue_position": self.position() if self.position and not self.done else None,
             "progress": self.progress,
             "zone": self.zone,
             "found": self.found,
@@ -651,12 +655,14 @@ class Job:
 
 
 class JobBoard:
-    """Planner runs in background threads; at most a few jobs are kept."""
+    """Planner runs on a bounded executor (one at a time, the rest queued); at most a few jobs are kept."""
 
-    def __init__(self, keep: int = 16) -> None:
+    def __init__(self, keep: int = 16, workers: int = 1) -> None:
         self.jobs: dict[str, Job] = {}
         self.keep = keep
         self.lock = threading.Lock()
+        self.pool = BoundedExecutor(workers=workers, max_queued=keep, name="plan")
+        self.check_pool = BoundedExecutor(workers=workers, max_queued=keep, name="check")
 
     def start(self, room_id: str, rf: RoomFile, opts: PlanOptions) -> Job:
         job = Job(uuid.uuid4().hex[:12], room_id)
@@ -672,16 +678,20 @@ class JobBoard:
 
         def run():
             try:
+                if job.cancel.is_set():
+                    raise Cancelled
                 job.result = plan(rf, opts, progress, job.cancel)
             except Cancelled:
                 job.cancelled = True
-            except Exception as exc:  # reported to the page, never a traceback
+            except Exception as exc:  # reported to the page, never a traceback; logged with it
+                logging.getLogger("leafcast.planner").exception("planner job %s failed", job.id)
                 job.error = f"the planner stopped: {exc}"
             finally:
                 job.done = True
                 job.progress = 1.0 if not job.cancelled else job.progress
 
-        threading.Thread(target=run, daemon=True, name=f"plan-{job.id}").start()
+        job.position = lambda: self.pool.position(job.id)
+        self.pool.submit(job.id, run)
         return job
 
     def get(self, job_id: str) -> Job | None:
