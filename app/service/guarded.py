@@ -47,6 +47,8 @@ class AnalysisRunner:
     budget_s: float = 20.0
     workers: int = 2
     memory_budget_bytes: int = DEFAULT_MEMORY_BUDGET_BYTES
+    in_process_below_s: float = IN_PROCESS_BELOW_S
+    start_allowance_s: float = CHILD_START_ALLOWANCE_S
 
     def __post_init__(self) -> None:
         self._slots = threading.BoundedSemaphore(self.workers)
@@ -63,9 +65,9 @@ class AnalysisRunner:
                 f"the server is busy with {self.workers} other analyses; nothing was computed. Try again shortly."
             )
         try:
-            if est.seconds < IN_PROCESS_BELOW_S:
+            if est.seconds < min(self.in_process_below_s, 0.5 * self.budget_s):
                 return analyse(room_file, **kw)
-            remaining = self.budget_s - (time.monotonic() - start)
+            remaining = self.budget_s - (time.monotonic() - start) + self.start_allowance_s
             return _in_child(room_file, kw, remaining, est)
         finally:
             self._slots.release()
@@ -105,9 +107,9 @@ def _in_child(room_file: RoomFile, kw: dict, remaining_s: float, est: CostEstima
     proc.start()
     child.close()
     try:
-        if not parent.poll(max(remaining_s, 0.0) + CHILD_START_ALLOWANCE_S):
+        if not parent.poll(max(remaining_s, 0.0)):
             raise AnalysisTimeout(
-                f"the analysis did not finish within the {remaining_s + CHILD_START_ALLOWANCE_S:.0f} s it had left "
+                f"the analysis did not finish within the {remaining_s:.1f} s it had left "
                 f"(estimated {est.seconds:.0f} s) and was stopped. Use a coarser map spacing, fewer fixtures or "
                 "a smaller zone, or start the server with a larger --max-analysis-s."
             )
