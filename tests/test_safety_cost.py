@@ -9,8 +9,8 @@ import multiprocessing
 import pytest
 
 from app.bench_safety import big_room, grid_of_fixtures
-from app.engine import direct
 from app.engine import cache as engine_cache
+from app.engine import direct
 from app.room.roomfile import grid_point_count, parse_room_file
 from app.service.analysis import analyse
 from app.service.cost import OverBudget, check_budget, estimate
