@@ -1,4 +1,4 @@
-"""Command line: ``leafcast serve``, ``leafcast check FILE``, ``leafcast report FILE``."""
+"""Command line: ``leafcast serve``, ``check FILE``, ``report FILE``, ``export FILE --dxf DIR``."""
 
 from __future__ import annotations
 
@@ -140,6 +140,29 @@ def _report(args) -> int:
     return 0
 
 
+def _export(args) -> int:
+    from app.service.dxf_export import plan_dxf, tier_count
+    from app.web.routes.sheet import dxf_filename
+
+    try:
+        rf = _load(args.file)
+    except RoomFileError as exc:
+        print(f"{args.file}: cannot export: " + ("no such file" if exc.kind == "missing" else str(exc)), file=sys.stderr)
+        return 1
+    out = Path(args.dxf)
+    if out.exists() and not out.is_dir():
+        print(f"--dxf {args.dxf}: not a folder", file=sys.stderr)
+        return 2
+    out.mkdir(parents=True, exist_ok=True)
+    for n in range(1, tier_count(rf.room) + 1):
+        path = out / dxf_filename(rf.room.name, n)
+        tmp = path.with_suffix(".dxf.tmp")
+        tmp.write_bytes(plan_dxf(rf.room, n))
+        tmp.replace(path)  # atomic: a reader never sees half a file
+        print(path)
+    return 0
+
+
 def main(argv: list[str] | None = None) -> int:
     ap = argparse.ArgumentParser(prog="leafcast", description="Lay out grow-room lighting.")
     ap.add_argument("--version", action="version", version=f"leafcast {__version__}")
@@ -172,6 +195,10 @@ def main(argv: list[str] | None = None) -> int:
     r.add_argument("--json", action="store_true", help="machine-readable output")
     r.add_argument("--grid-csv", metavar="DIR", help="write each zone's PPFD and DLI grid as CSV into DIR")
     r.set_defaults(func=_report)
+    x = sub.add_parser("export", help="write the sheet's plan of each tier as DXF for CAD")
+    x.add_argument("file")
+    x.add_argument("--dxf", metavar="DIR", required=True, help="folder for one DXF per tier (created if missing)")
+    x.set_defaults(func=_export)
     args = ap.parse_args(argv)
     return args.func(args)
 

@@ -176,6 +176,14 @@ class FixtureType(Strict):
     power_w: float = Field(gt=0, le=10000, description="Input power at full power [W].")
     weight_kg: float | None = Field(default=None, ge=0, le=500)
     notes: str = Field(default="", max_length=1000)
+    hanging_points_m: list[tuple[Annotated[float, Field(ge=-2.5, le=2.5)], Annotated[float, Field(ge=-2.5, le=2.5)]]] | None = Field(
+        default=None,
+        max_length=limits.MAX_HANGING_POINTS,
+        description="Where it hangs from, (x, y) in its own frame from its centre [m]; none: the sheet's default.",
+    )
+    cord_note: str = Field(default="", max_length=200, description="Power cord: length, plug.")
+    driver_note: str = Field(default="", max_length=200, description="Driver: built in or remote, its place.")
+    price: float | None = Field(default=None, ge=0, le=1_000_000, description="Price each, in the room's currency.")
     maintenance: OutputMaintenance | None = Field(
         default=None, description="Rated or measured output maintenance; none: output does not fall with age."
     )
@@ -365,6 +373,15 @@ class Crop(Strict):
     source: str = Field(default="", max_length=600)
 
 
+class Entry(Strict):
+    """Where people come in: the plan's fixed reference (a door, a tent's zip)."""
+
+    side: Side = "front"
+    offset_m: Metres | None = Field(default=None, description="Centre along that wall from its left/front end.")
+    width_m: float | None = Field(
+        default=None, gt=0, le=limits.MAX_ROOM_SIDE_M, description="Opening width; none: 0.8 m or half a short wall."
+    )
+    label: str = Field(default="Entry", min_length=1, max_length=40)
 class OutputAge(Strict):
     """The fixtures' age and dirt, and at which age figures are shown."""
 
@@ -469,6 +486,7 @@ class Room(Strict):
         default=0.0254, ge=limits.MIN_GRID_SPACING_M, le=1.0, description="Canopy grid spacing (1 inch)."
     )
     display_units: DisplayUnits = "imperial"
+    entry: Entry = Field(default_factory=Entry, description="The door or entry drawn on the sheet's plan.")
     output_age: OutputAge = Field(default_factory=OutputAge)
     readings: list[ReadingSet] = Field(default_factory=list, max_length=limits.MAX_READING_SETS)
     payback: PaybackPlan | None = None

@@ -254,6 +254,18 @@ def grid_point_count(room: Room) -> int:
     return sum((math.floor(z.width_m / s) + 1) * (math.floor(z.length_m / s) + 1) for z in room.zones)
 
 
+def _entry_problems(room: Room) -> list[Problem]:
+    """The entry must fit on its wall."""
+    e = room.entry
+    wall = room.width_m if e.side in ("front", "back") else room.length_m
+    out = []
+    if e.width_m is not None and e.width_m > wall + _EDGE_TOLERANCE_M:
+        out.append(Problem("room.entry.width_m", f"{e.width_m:g} m is wider than the {e.side} wall ({wall:g} m)"))
+    if e.offset_m is not None and e.offset_m > wall + _EDGE_TOLERANCE_M:
+        out.append(Problem("room.entry.offset_m", f"{e.offset_m:g} m is past the end of the {e.side} wall ({wall:g} m)"))
+    return out
+
+
 def consistency_problems(room_file: RoomFile) -> list[Problem]:
     """Checks that need the whole room. Returns every problem found."""
     room = room_file.room
@@ -268,6 +280,7 @@ def consistency_problems(room_file: RoomFile) -> list[Problem]:
             p.append(Problem(f"room.circuits[{i}].name", f"duplicate circuit name '{c}'"))
     if len(set(room.open_sides)) != len(room.open_sides):
         p.append(Problem("room.open_sides", "each side may be listed once"))
+    p += _entry_problems(room)
 
     W, L, H = room.width_m, room.length_m, room.height_m
     tol = _EDGE_TOLERANCE_M
