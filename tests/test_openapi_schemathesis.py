@@ -106,7 +106,6 @@ def _every_operation(api, room_doc):
     call("GET", "/api/rooms")
     stored = call("GET", "/api/rooms/{room_id}", path_parameters=rid).json()
     call("PUT", "/api/rooms/{room_id}", path_parameters=rid, body=stored, media_type="application/json")
-    call("POST", "/api/rooms/{room_id}/restore-previous", path_parameters=rid)
     call("POST", "/api/rooms/import", body=room_doc, media_type="application/json")
     call("GET", "/api/rooms/{room_id}/file", path_parameters=rid)
     call("GET", "/api/rooms/{room_id}/analysis", path_parameters=rid)
