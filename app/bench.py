@@ -222,7 +222,9 @@ def bench_year() -> dict:
         year_view("bench", rf)
         runs.append(time.perf_counter() - t0)
     cold = statistics.median(runs)
-    print(f"cycle-and-year page, greenhouse-lettuce-bench: first call {first:.2f} s, then {cold:.2f} s with cold caches")
+    print(
+        f"cycle-and-year page, greenhouse-lettuce-bench: first call {first:.2f} s, then {cold:.2f} s with cold caches"
+    )
     return {"scene": "year page greenhouse-lettuce-bench", "first_s": first, "cold_s": cold}
 
 
@@ -234,6 +236,11 @@ def main(argv: list[str] | None = None) -> int:
     ap.add_argument("--no-planner", action="store_true", help="skip the planner and check-my-setup timings")
     ap.add_argument("--planner-repeats", type=int, default=3, help="runs per planner timing (median)")
     ap.add_argument("--browser", action="store_true", help="also time pointer move to repainted map in Chromium")
+    ap.add_argument(
+        "--safety",
+        action="store_true",
+        help="also: the cost model against measured times, and small requests beside the heaviest accepted one",
+    )
     ap.add_argument("--no-year", action="store_true", help="skip the cycle-and-year page timing")
     args = ap.parse_args(argv)
     rng = np.random.default_rng(1)
@@ -285,11 +292,33 @@ def main(argv: list[str] | None = None) -> int:
                 f"max {r['max_ms']:.0f} ms"
             )
             results.append({"scene": "browser " + r["room"], **r})
+    if args.safety:
+        results += safety_figures()
     rss = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024
     print(f"peak resident memory of this whole run: {rss:.0f} MiB (traced numpy peak per scene in the table)")
     if args.json:
         args.json.write_text(json.dumps(results, indent=1))
     return 0
+
+
+def safety_figures(budget_s: float = 20.0) -> list[dict]:
+    """Cost model estimate against measured seconds; small-request latency while a heavy analysis runs."""
+    from app.bench_safety import cost_model_table, heavy_beside_small
+
+    rows = cost_model_table()
+    print(f"\n{'cost model: scene':<44}{'points':>9}{'estimate s':>12}{'measured s':>12}{'ratio':>7}")
+    for r in rows:
+        ratio = r["estimate_s"] / max(r["measured_s"], 1e-9)
+        print(f"{r['scene']:<44}{r['points']:>9,}{r['estimate_s']:>12.2f}{r['measured_s']:>12.2f}{ratio:>7.2f}")
+    h = heavy_beside_small(budget_s)
+    print(
+        f"\nheavy request ({h['heavy_points']:,} points, {h['heavy_fixtures']} fixtures, budget {budget_s:g} s): "
+        f"answered {h['heavy_status']} in {h['heavy_s']:.1f} s\n"
+        f"small requests (room list API and page): alone p50 {h['alone_p50_ms']:.0f} ms, p95 {h['alone_p95_ms']:.0f} ms; "
+        f"beside it ({h['beside_n']} requests) p50 {h['beside_p50_ms']:.0f} ms, p95 {h['beside_p95_ms']:.0f} ms, "
+        f"max {h['beside_max_ms']:.0f} ms"
+    )
+    return [{"scene": "cost model " + r["scene"], **r} for r in rows] + [{"scene": "heavy beside small", **h}]
 
 
 if __name__ == "__main__":

@@ -123,8 +123,8 @@ def _every_operation(api, room_doc):
         "POST",
         "/api/photometry/import",
         query={"kind": "ies", "flux_unit": "photon"},
-        body=LAMBERTIAN_IES,
-        media_type="text/plain",
+        body=LAMBERTIAN_IES.encode(),
+        media_type="application/octet-stream",
     )
     call(
         "POST",
@@ -283,6 +283,16 @@ def test_stateful_room_lifecycle_has_no_server_error(api):
             if r.status_code == 202:
                 jid = {"job_id": r.json()["job_id"]}
                 assert self.call("DELETE", "/api/plan-jobs/{job_id}", path_parameters=jid).status_code == 200
+
+        @rule(rid=rooms)
+        def restore_previous(self, rid):
+            r = self.call("POST", "/api/rooms/{room_id}/restore-previous", path_parameters={"room_id": rid})
+            known = self.revisions.get(rid)
+            # A room has a previous revision once it was saved at least once after its creation.
+            assert r.status_code == (200 if known is not None and known > 1 else 404), r.text
+            if r.status_code == 200:
+                assert r.json()["revision"] == known + 1
+                self.revisions[rid] = known + 1
 
         @rule(rid=rooms)
         def delete(self, rid):

@@ -57,6 +57,7 @@ class CostEstimate:
     grid_points: int
     fixtures: int
     units: dict[str, float] = field(default_factory=dict)
+    footprints: int = 0  # distinct open-air footprints computed (identical fixtures share one)
 
     @property
     def main_term(self) -> str:
@@ -175,7 +176,7 @@ def estimate(room: Room) -> CostEstimate:
     units["points"] = float(points)
     seconds = FIXED_S + sum(units[k] * NS_PER[k] for k in units) * 1e-9
     memory = BYTES_FIXED + CHUNK_BYTES + BYTES_PER_POINT * points
-    return CostEstimate(seconds, int(memory), points, len(emitters), units)
+    return CostEstimate(seconds, int(memory), points, len(emitters), units, footprints=len(shared))
 
 
 ADVICE = {

@@ -15,7 +15,7 @@ from app.web.deps import load_room, store_of, within_budget
 from app.web.errors import ERRORS, ApiError, not_found
 
 router = APIRouter(tags=["planner"])
-CHECK_BUDGET_FACTOR = 3  # check-my-setup analyses the room several times: a few analyses' worth of time
+CHECK_BUDGET_FACTOR = 10  # check-my-setup analyses the room many times (a real search): ten analyses' worth
 
 
 def jobs_of(request: Request) -> JobBoard:
