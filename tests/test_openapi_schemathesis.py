@@ -114,6 +114,7 @@ def _every_operation(api, room_doc):
     call("GET", "/api/rooms/{room_id}/zones/{zone_id}/grid.csv", path_parameters=zid)
     call("GET", "/api/rooms/{room_id}/zones/{zone_id}/map.svg", path_parameters=zid)
     call("GET", "/api/rooms/{room_id}/check", path_parameters=rid)
+    call("POST", "/api/rooms/{room_id}/check-jobs", path_parameters=rid)
     call("GET", "/api/rooms/{room_id}/curves", path_parameters=rid, query={"zone": zid["zone_id"]})
     job = call("POST", "/api/rooms/{room_id}/plan", path_parameters=rid, body={}, media_type="application/json")
     jid = {"job_id": job.json()["job_id"]}

@@ -33,7 +33,7 @@ HOUR_STEP_H = 0.25  # timers are set in quarter hours
 MIN_FIX_CLEARANCE_M = 0.10  # least height above the canopy a re-hang fix proposes (common practice, no source)
 HEIGHT_STEPS = 8
 MIN_DIMMING_PCT = 10
-LIVE_KINDS = 2  # the live analysis offers a photoperiod or one dimming; check-my-setup every kind
+LIVE_KINDS = 1  # the live analysis offers a photoperiod fix; check-my-setup every kind (memory, speed)
 RETRIES = 3  # candidates tried, nearest first, before a kind of fix is given up
 SERIOUS = ("warning", "error")
 
@@ -333,5 +333,10 @@ def attach_fixes(rf: RoomFile, result: dict[str, Any], grids: list[np.ndarray], 
                 w["fix"] = f"{w['fix']} Checked: {fixes[0]['text']}"
             elif fixes:
                 w["fix"] = fixes[0]["text"]
-            elif w["severity"] in SERIOUS:
+            elif w["severity"] in SERIOUS and every_kind:
                 w["fix"] = "No setting fixes it: " + "; ".join(why_not) + ". Change the layout (the planner)."
+            elif w["severity"] in SERIOUS:
+                w["fix"] = (
+                    f"{w['fix']} No photoperiod fixes it ({'; '.join(why_not)}); Check my setup on the planner page "
+                    "tries one dimming and one hanging height, each checked."
+                )

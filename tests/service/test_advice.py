@@ -58,7 +58,7 @@ CASES = [(n, k) for n in SAMPLES for k in ("as is", "hot", "dark", "white")]
 @pytest.mark.parametrize("name, kind", CASES)
 def test_every_offered_fix_solves_its_zone_and_breaks_nothing(name, kind):
     rf = parse_room_file(to_json_bytes(variant(name, kind)))
-    base = analyse(rf)
+    base = analyse(rf, with_fixes="all")  # every kind of fix, as check-my-setup asks for
     serious = {(w["code"], w["zone_id"]) for w in base["warnings"] if w["severity"] in ("warning", "error")}
     for z in base["zones"]:
         for fix in z.get("fixes", []):
@@ -75,9 +75,10 @@ def test_every_offered_fix_solves_its_zone_and_breaks_nothing(name, kind):
 
 
 def test_fixes_are_offered_at_all():
-    """The loop above must have something to check: the hot and dark tents each get a verified fix."""
-    for kind in ("hot", "dark"):
-        a = analyse(parse_room_file(to_json_bytes(variant("hobby-tent-peppers", kind))))
+    """The loop above must have something to check: the hot and dark tents each get a verified fix (the live
+    analysis offers the photoperiod kind, check-my-setup every kind)."""
+    for kind, fixes in (("hot", "all"), ("dark", True)):
+        a = analyse(parse_room_file(to_json_bytes(variant("hobby-tent-peppers", kind))), with_fixes=fixes)
         assert a["zones"][0].get("fixes"), kind
         warned = [w for w in a["warnings"] if w.get("fixes")]
         assert warned and warned[0]["fix"] == warned[0]["fixes"][0]["text"]
@@ -98,7 +99,7 @@ def test_dark_tent_photoperiod_fix_follows_the_dli_definition():
 
 
 def test_impossible_target_says_so_and_why():
-    a = analyse(parse_room_file(to_json_bytes(sample_doc("three-tier-greens-rack"))))
+    a = analyse(parse_room_file(to_json_bytes(sample_doc("three-tier-greens-rack"))), with_fixes="all")
     tier2 = next(z for z in a["zones"] if z["id"] == "tier-2")
     assert not tier2.get("fixes")
     why = " ".join(tier2["no_fix_because"])
