@@ -1,6 +1,7 @@
 """The editor in a real Chromium against a real uvicorn: drag, undo, units, bad files, conflicts."""
 
 import json
+import re
 
 import pytest
 from numpy.testing import assert_allclose
@@ -59,14 +60,21 @@ def test_unit_switch_changes_what_is_shown_not_the_file(live_server, page, artif
     page.locator('[data-fixture-id="F1"]').click()
     inches = page.locator("#f-x").input_value()
     room_w_imperial = page.locator("#r-w").input_value()
+    x_m = before["room"]["fixtures"][0]["x_m"]
+    # Feet and inches to the eighth, as typed: 1' 0 3/8" or 8 1/2".
+    assert re.fullmatch(r"(\d+' )?\d+( \d/\d)?\"|(\d+' )?\d/\d\"", inches), inches
     page.locator("input[name=units][value=metric]").check()
     cm = page.locator("#f-x").input_value()
-    assert_allclose(float(cm), float(inches) * 2.54, rtol=1e-3)
+    assert cm.endswith(" cm") and abs(float(cm.split()[0]) - 100 * x_m) <= 0.05, (cm, x_m)
     assert page.locator("#r-w").input_value() != room_w_imperial
     assert "cm" in page.locator("#plan").inner_html() or " m" in page.locator("#plan").inner_html()
     page.screenshot(path=str(artifacts / "editor-metric.png"))
     page.wait_for_timeout(1500)  # longer than the autosave delay
     assert api(live_server, f"/api/rooms/{room}") == before
+    # The choice is this browser's and survives a reload.
+    page.reload()
+    wait_analysis_idle(page)
+    assert page.locator("input[name=units][value=metric]").is_checked()
 
 
 def test_corrupt_file_shows_error_and_changes_nothing(live_server, page, artifacts, tmp_path):
@@ -157,6 +165,7 @@ def test_editing_a_crop_band_makes_the_rooms_own_crop(live_server, page):
     before = api(live_server, f"/api/rooms/{room}")
     page.goto(f"{live_server}/rooms/{room}")
     wait_analysis_idle(page)
+    page.click("#tab-zones")
     page.fill("#z0-dli_min", "15")
     page.press("#z0-dli_min", "Tab")
     wait_saved(page, before["revision"])
