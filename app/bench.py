@@ -21,7 +21,8 @@ from pathlib import Path
 import numpy as np
 
 from app.assets import asset_dir
-from app.engine import compute, direct, reflections
+from app.engine import cache as engine_cache
+from app.engine import compute, direct
 from app.engine.compute import compute_scene
 from app.engine.direct import irradiance_from_nodes
 from app.engine.emitters import local_nodes
@@ -39,9 +40,7 @@ def clear_fixture_caches() -> None:
 
 
 def clear_all_caches() -> None:
-    clear_fixture_caches()
-    for fn in (reflections.wall_patches, reflections.radiosity_operator, reflections.patch_to_grid):
-        fn.cache_clear()
+    engine_cache.clear_all()
 
 
 def run(scene: EngineScene):

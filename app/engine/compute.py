@@ -8,13 +8,14 @@ only its own contribution is recomputed (the drag case).
 from __future__ import annotations
 
 from dataclasses import dataclass
-from functools import lru_cache
 
 import numpy as np
 
+from app.engine.cache import MIB, memoise
 from app.engine.direct import Patch, direct_patch
 from app.engine.reflections import diffuse_map, patch_irradiance, radiosity_operator, specular_map
 from app.engine.scene import Box, Emitter, Enclosure, Grid
+from app.room.layout import covers_from_above  # pure numbers: the one layout rule's tolerance
 
 
 class SceneError(ValueError):
@@ -57,15 +58,21 @@ def check_scene(emitters, grids, boxes) -> None:
 
 def covering_height_m(grid: Grid, boxes: tuple[Box, ...]) -> float:
     """Bottom of the lowest box that covers the whole grid from above (a shelf over a tier), or inf."""
-    tol = 1e-3
     over = [
         b.z0_m
         for b in boxes
-        if b.z0_m >= grid.z_m - 1e-9
-        and b.x0_m <= grid.x0_m + tol
-        and b.y0_m <= grid.y0_m + tol
-        and b.x1_m >= grid.x0_m + grid.width_m - tol
-        and b.y1_m >= grid.y0_m + grid.length_m - tol
+        if covers_from_above(
+            b.x0_m,
+            b.y0_m,
+            b.x1_m,
+            b.y1_m,
+            b.z0_m,
+            grid.x0_m,
+            grid.y0_m,
+            grid.x0_m + grid.width_m,
+            grid.y0_m + grid.length_m,
+            grid.z_m,
+        )
     ]
     return min(over, default=np.inf)
 
@@ -97,7 +104,7 @@ class BoxSet(tuple):
         return h
 
 
-@lru_cache(maxsize=8192)
+@memoise("fixture_on_grid", max_bytes=128 * MIB)
 def fixture_on_grid(
     emitter: Emitter,
     grid: Grid,
@@ -114,7 +121,7 @@ def fixture_on_grid(
     return direct, spec
 
 
-@lru_cache(maxsize=8192)
+@memoise("fixture_on_patches", max_bytes=32 * MIB)
 def _fixture_on_patches(emitter: Emitter, enc: Enclosure, boxes: tuple[Box, ...]) -> np.ndarray:
     e = patch_irradiance(emitter, enc, boxes)
     e.setflags(write=False)

@@ -12,10 +12,10 @@ incidence at the receiver. For a level, upward receiver cos θ_r = Δz / d.
 from __future__ import annotations
 
 from dataclasses import dataclass, replace
-from functools import lru_cache
 
 import numpy as np
 
+from app.engine.cache import MIB, memoise
 from app.engine.distributions import Distribution, intensity_per_flux
 from app.engine.emitters import world_nodes
 from app.engine.scene import Box, Emitter, Grid
@@ -188,7 +188,7 @@ def relevant_boxes(emitter: Emitter, grid: Grid, boxes: tuple[Box, ...], reach_m
     return tuple(out)
 
 
-@lru_cache(maxsize=256)
+@memoise("footprint_stamps", max_bytes=96 * MIB)
 def _stamp(local: Emitter, spacing_m: float, ia: int, ib: int, ja: int, jb: int, dtype_name: str) -> np.ndarray:
     """Open-air footprint of an emitter at (fx·s, fy·s, Δz) over points (i·s, j·s), ia ≤ i < ib, ja ≤ j < jb."""
     gx, gy = np.meshgrid(spacing_m * np.arange(ia, ib), spacing_m * np.arange(ja, jb))

@@ -14,6 +14,7 @@ References
 
 from __future__ import annotations
 
+import hashlib
 from dataclasses import dataclass, field
 
 import numpy as np
@@ -80,6 +81,16 @@ def _interp_table(polar_rad, azimuth_rad, table, theta, phi):
     return np.where(outside, 0.0, out)
 
 
+def _table_key(polar_rad, azimuth_rad, table) -> str:
+    """Content key of a table: its angles as well as its values (two tables alike but on other angles differ)."""
+    h = hashlib.sha1()
+    for a in (polar_rad, azimuth_rad, table):
+        a = np.ascontiguousarray(a, dtype=float)
+        h.update(str(a.shape).encode())
+        h.update(a.tobytes())
+    return "table:" + h.hexdigest()
+
+
 def tabulated(polar_deg, azimuth_deg, relative_intensity, key: str = "") -> Distribution:
     """A distribution from a table of relative intensities, normalised to unit flux.
 
@@ -104,7 +115,7 @@ def tabulated(polar_deg, azimuth_deg, relative_intensity, key: str = "") -> Dist
         raise ValueError("the table emits no light below the horizon")
     return Distribution(
         kind="tabulated",
-        key=key or f"table:{hash(table.tobytes())}",
+        key=key or _table_key(polar, azim, table),
         polar_rad=polar,
         azimuth_rad=azim,
         table_per_sr=table / total,

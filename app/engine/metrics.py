@@ -15,6 +15,8 @@ import numpy as np
 
 SECONDS_PER_HOUR = 3600.0
 UMOL_PER_MOL = 1e6
+#: DLI per unit PPFD and hour of light: 3600 s h⁻¹ / 10⁶ µmol mol⁻¹ (Faust & Logan 2018).
+DLI_FACTOR = SECONDS_PER_HOUR / UMOL_PER_MOL
 
 
 def dli_mol_m2_d(ppfd_umol_m2_s, photoperiod_h):

@@ -19,10 +19,10 @@ the limitation is stated in the README).
 from __future__ import annotations
 
 from dataclasses import dataclass, replace
-from functools import lru_cache
 
 import numpy as np
 
+from app.engine.cache import MIB, memoise
 from app.engine.direct import blocked, irradiance_from_nodes, nearest_distance_m
 from app.engine.emitters import world_nodes
 from app.engine.scene import Box, Emitter, Enclosure, Grid
@@ -225,7 +225,7 @@ def _split(extent: float) -> int:
     return int(np.clip(np.ceil(extent / PATCH_TARGET_M), 2, MAX_PATCHES_PER_SIDE))
 
 
-@lru_cache(maxsize=16)
+@memoise("wall_patches", max_bytes=16 * MIB)
 def wall_patches(enc: Enclosure) -> Patches:
     """Patches over the closed walls and the ceiling (same finish), normals inward."""
     W, L, H, rho = enc.width_m, enc.length_m, enc.height_m, enc.reflectance
@@ -270,7 +270,7 @@ def _exchange(src_c, src_n, src_a, dst_c, dst_n):
     return cos_dst * cos_src * src_a[None, :] / (np.pi * r2 + src_a[None, :])
 
 
-@lru_cache(maxsize=16)
+@memoise("radiosity_operators", max_bytes=48 * MIB)
 def radiosity_operator(enc: Enclosure, blockers: tuple[Box, ...] = ()) -> np.ndarray:
     """K with B = K @ E_direct: K = (I − ρ F)⁻¹ ρ, F_ij the irradiance at i per unit exitance of j.
 
@@ -314,7 +314,7 @@ def _grid_points(grid: Grid, rows: slice = slice(None)) -> np.ndarray:
     return np.column_stack([gx.ravel(), gy.ravel(), np.full(gx.size, grid.z_m)])
 
 
-@lru_cache(maxsize=64)
+@memoise("patch_to_grid", max_bytes=48 * MIB)
 def patch_to_grid(enc: Enclosure, grid: Grid) -> np.ndarray:
     """(M, P) irradiance at each grid point per unit exitance of each patch."""
     R = _to_points(wall_patches(enc), _grid_points(grid)).astype(np.float32)

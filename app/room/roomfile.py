@@ -20,7 +20,7 @@ from typing import Any
 
 from pydantic import ValidationError
 
-from app.room import limits
+from app.room import layout, limits
 from app.room.library import crops_for
 from app.room.models import FORMAT_NAME, FORMAT_VERSION, Room, RoomFile
 
@@ -135,10 +135,8 @@ def _duplicates(prefix: str, ids: list[str]) -> list[Problem]:
     ]
 
 
-def fixture_half_extent_m(length_m: float, width_m: float, rotation_deg: float) -> tuple[float, float]:
-    """Half sizes along x and y of a rectangle rotated about the vertical."""
-    c, s = abs(math.cos(math.radians(rotation_deg))), abs(math.sin(math.radians(rotation_deg)))
-    return 0.5 * (length_m * c + width_m * s), 0.5 * (length_m * s + width_m * c)
+# The planner still imports the old name; the rule itself lives in app.room.layout.
+fixture_half_extent_m = layout.rotated_half_extent_m
 
 
 def grid_point_count(room: Room) -> int:
@@ -200,22 +198,20 @@ def consistency_problems(room_file: RoomFile) -> list[Problem]:
                 )
             )
             continue
-        hx, hy = fixture_half_extent_m(t.geometry.length_m, t.geometry.width_m, f.rotation_deg)
-        if f.x_m - hx < -tol or f.x_m + hx > W + tol or f.y_m - hy < -tol or f.y_m + hy > L + tol:
+        x0, y0, x1, y1 = layout.fixture_extent(f, t)
+        if x0 < -tol or x1 > W + tol or y0 < -tol or y1 > L + tol:
             p.append(Problem(at, f"fixture '{f.id}' is outside the room: its footprint reaches beyond the walls"))
         if f.hanging_height_m > H + tol:
             p.append(Problem(f"{at}.hanging_height_m", f"{f.hanging_height_m:g} m is above the ceiling ({H:g} m)"))
         if f.circuit not in circuits:
             p.append(Problem(f"{at}.circuit", f"unknown circuit '{f.circuit}'; the room has {circuits}"))
-        for z in room.zones:
-            over = z.x_m <= f.x_m <= z.x_m + z.width_m and z.y_m <= f.y_m <= z.y_m + z.length_m
-            if over and z.canopy_height_m < f.hanging_height_m < z.canopy_height_m + 0.01:
-                p.append(
-                    Problem(
-                        f"{at}.hanging_height_m", f"fixture '{f.id}' is less than 1 cm above the canopy of '{z.id}'"
-                    )
-                )
-            if over and abs(f.hanging_height_m - z.canopy_height_m) < 1e-9:
+        lit = layout.zone_lit_by(room.zones, f)
+        if lit is not None and f.hanging_height_m < lit.canopy_height_m + layout.MIN_FIXTURE_CLEARANCE_M:
+            p.append(
+                Problem(f"{at}.hanging_height_m", f"fixture '{f.id}' is less than 1 cm above the canopy of '{lit.id}'")
+            )
+        for z in layout.zones_under(room.zones, f):
+            if abs(f.hanging_height_m - z.canopy_height_m) < 1e-9:
                 p.append(Problem(f"{at}.hanging_height_m", f"fixture '{f.id}' sits in the canopy of '{z.id}'"))
         for o in room.obstacles:
             if (

@@ -17,6 +17,7 @@ from app.engine import electrical as elec
 from app.engine import metrics as mx
 from app.engine.budget import photon_budget
 from app.engine.compute import compute_scene
+from app.room import layout
 from app.room.library import crops_for
 from app.room.models import CanopyZone, Crop, Fixture, Room, RoomFile
 from app.service.scene_builder import build_scene
@@ -53,15 +54,8 @@ def zone_photoperiod_h(room: Room, zone: CanopyZone) -> float:
 
 
 def zone_below(room: Room, fixture: Fixture) -> CanopyZone | None:
-    """The zone a fixture hangs over: the highest canopy below it whose rectangle holds its centre."""
-    below = [
-        z
-        for z in room.zones
-        if z.canopy_height_m < fixture.hanging_height_m
-        and z.x_m <= fixture.x_m <= z.x_m + z.width_m
-        and z.y_m <= fixture.y_m <= z.y_m + z.length_m
-    ]
-    return max(below, key=lambda z: z.canopy_height_m) if below else None
+    """The zone a fixture lights (the one layout rule, :func:`app.room.layout.zone_lit_by`)."""
+    return layout.zone_lit_by(room.zones, fixture)
 
 
 def _fixture_hours(room: Room) -> dict[str, float]:
@@ -207,7 +201,7 @@ def analyse(
         flux = float((ppfd * area).sum())
         direct_flux = float((zl.direct * area).sum())
         canopy_flux += flux
-        canopy_photons_mol_day += flux * photoperiod * 3600 / 1e6
+        canopy_photons_mol_day += flux * photoperiod * mx.DLI_FACTOR
         target_mid = 0.5 * (stage.dli_min + stage.dli_max)
         hours_for_min = float(mx.photoperiod_for_dli_h(stage.dli_min, stats["avg"])) if stats["avg"] > 0 else None
         hours_for_min_everywhere = (
@@ -423,6 +417,7 @@ def analyse(
         },
         "zones": zones_out,
         "fixtures": fixtures_out,
+        "fixture_zones": layout.fixture_zones(room.zones, room.fixtures),
         "energy": energy,
         "heat": heat,
         "circuits": circuits_out,

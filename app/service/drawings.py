@@ -13,29 +13,12 @@ import numpy as np
 
 from app.room.models import Room
 from app.room.units import format_length
-
-# Viridis anchor colours (matplotlib's perceptually uniform map, sampled every 1/8).
-_VIRIDIS = np.array(
-    [
-        [68, 1, 84],
-        [71, 44, 122],
-        [59, 81, 139],
-        [44, 113, 142],
-        [33, 144, 141],
-        [39, 173, 129],
-        [92, 200, 99],
-        [170, 220, 50],
-        [253, 231, 37],
-    ],
-    dtype=float,
-)
+from app.service.colours import colours_at
 
 
 def viridis(t: np.ndarray) -> np.ndarray:
-    t = np.clip(np.asarray(t, float), 0, 1) * (len(_VIRIDIS) - 1)
-    i = np.minimum(np.floor(t).astype(int), len(_VIRIDIS) - 2)
-    f = (t - i)[..., None]
-    return _VIRIDIS[i] * (1 - f) + _VIRIDIS[i + 1] * f
+    """Map colours from the one colour scale (:mod:`app.service.colours`)."""
+    return colours_at(t)
 
 
 def _hex(rgb) -> str:

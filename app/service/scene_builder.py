@@ -7,6 +7,7 @@ import json
 from dataclasses import dataclass
 
 from app.engine import distributions as dist
+from app.engine.cache import MIB, BoundedCache
 from app.engine.scene import Box, Emitter, Enclosure, Grid
 from app.room.models import Beam, CanopyZone, FixtureType, Room
 
@@ -19,22 +20,21 @@ class EngineScene:
     boxes: tuple[Box, ...]
 
 
-_dist_cache: dict[str, dist.Distribution] = {}
+_dist_cache = BoundedCache("distributions", max_bytes=8 * MIB)
 
 
 def distribution_for(beam: Beam) -> dist.Distribution:
     key = hashlib.sha1(json.dumps(beam.model_dump(mode="json"), sort_keys=True).encode()).hexdigest()
-    if key not in _dist_cache:
+    d = _dist_cache.get(key)
+    if d is None:
         if beam.kind == "lambertian":
             d = dist.lambertian()
         elif beam.kind == "cosine_power":
             d = dist.cosine_power(float(dist.cosine_exponent_from_beam_angle(beam.beam_angle_deg)))
         else:
             d = dist.tabulated(beam.polar_deg, beam.azimuth_deg, beam.relative_intensity, key=key)
-        if len(_dist_cache) > 256:
-            _dist_cache.clear()
-        _dist_cache[key] = d
-    return _dist_cache[key]
+        _dist_cache.put(key, d)
+    return d
 
 
 def emitter_for(

@@ -6,11 +6,12 @@ import datetime as dt
 from typing import Any
 
 from app import __version__
+from app.room.layout import zone_lit_by
 from app.room.library import crops_for, fixture_library
 from app.room.models import WALL_FINISHES, RoomFile
 from app.room.roomfile import dump_room_file
 from app.room.storage import RoomStore
-from app.service.analysis import zone_below
+from app.service.colours import colour_scale
 from app.service.drawings import heatmap_svg, plan_svg
 
 
@@ -27,6 +28,7 @@ def editor(room_id: str, room_file: RoomFile, analysis: dict[str, Any]) -> dict[
         "fixture_library": [t.model_dump(mode="json") for t in fixture_library().values()],
         "crops": {cid: c.model_dump(mode="json") for cid, c in crops_for(room_file).items()},
         "wall_finishes": {k: v.model_dump(mode="json") for k, v in WALL_FINISHES.items()},
+        "colour_scale": colour_scale(),
         "version": __version__,
     }
 
@@ -37,7 +39,7 @@ def sheet(room_id: str, room_file: RoomFile, analysis: dict[str, Any], paper: st
     fixtures = []
     types = {t.id: t for t in room.fixture_types}
     for f in room.fixtures:
-        top = zone_below(room, f)
+        top = zone_lit_by(room.zones, f)
         fixtures.append(
             {
                 "id": f.id,

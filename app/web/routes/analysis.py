@@ -12,6 +12,7 @@ from app.room.roomfile import Problem
 from app.service.analysis import Region
 from app.service.drawings import heatmap_svg
 from app.service.exports import grid_csv
+from app.service.results import Analysis
 from app.web.bodies import ROOM_BODY, room_from_body
 from app.web.deps import analysed, load_room, store_of
 from app.web.errors import ERRORS, ApiError, not_found
@@ -21,15 +22,19 @@ router = APIRouter(tags=["analysis"])
 
 @router.get(
     "/api/rooms/{room_id}/analysis",
+    response_model=Analysis,
+    response_model_exclude_unset=True,
     responses=ERRORS,
     summary="PPFD/DLI maps, coverage, energy, circuits and warnings",
 )
-def room_analysis(request: Request, room_id: str, budget: bool = False, grids: bool = True) -> dict[str, Any]:
+def room_analysis(request: Request, room_id: str, budget: bool = False, grids: bool = True):
     return analysed(load_room(store_of(request), room_id), with_budget=budget, include_grids=grids)
 
 
 @router.post(
     "/api/analyze",
+    response_model=Analysis,
+    response_model_exclude_unset=True,
     responses=ERRORS,
     openapi_extra=ROOM_BODY,
     summary="Analyse a posted room file without saving it (live editing)",

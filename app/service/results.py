@@ -1,0 +1,178 @@
+"""Typed results of the analysis, with units: the response models of the API and the schema in /openapi.json.
+
+The analysis computes on unrounded numpy arrays; only the grids handed to the browser are rounded (PPFD to
+0.1 µmol m⁻² s⁻¹, DLI to 0.01 mol m⁻² d⁻¹), at this display edge. Extra keys are allowed so a service can add a
+figure before its model here names it; every figure a page reads should be named here.
+"""
+
+from __future__ import annotations
+
+from typing import Any
+
+from pydantic import BaseModel, ConfigDict, Field
+
+
+class Result(BaseModel):
+    model_config = ConfigDict(extra="allow")
+
+
+class AreaStats(Result):
+    """Area-weighted statistics of a map (PPFD in µmol m⁻² s⁻¹ or DLI in mol m⁻² d⁻¹)."""
+
+    avg: float
+    min: float
+    max: float
+    min_over_avg: float = Field(description="Uniformity U0 = E_min / E_avg (EN 12464-1 definition)")
+    min_over_max: float
+    max_over_avg: float
+    cv: float = Field(description="Coefficient of variation, area-weighted")
+
+
+class ZoneTarget(Result):
+    dli_min: float = Field(description="Bottom of the crop's DLI band [mol m⁻² d⁻¹]")
+    dli_max: float = Field(description="Top of the crop's DLI band [mol m⁻² d⁻¹]")
+    ppfd_min: float = Field(description="PPFD giving dli_min over the zone's photoperiod [µmol m⁻² s⁻¹]")
+    ppfd_max: float = Field(description="PPFD giving dli_max over the zone's photoperiod [µmol m⁻² s⁻¹]")
+    ppfd_stress: float = Field(description="PPFD above which the crop's leaves are stressed [µmol m⁻² s⁻¹]")
+    source: str = Field(description="Where the band comes from (publication, or 'from memory')")
+
+
+class AreaShare(Result):
+    area_m2: float
+    share: float = Field(description="Share of the zone's area, 0-1")
+    outline: list[list[float]] = Field(description="Closed polylines [x0, y0, x1, y1, ...] around the area [m]")
+
+
+class ZoneGrid(Result):
+    x_m: list[float]
+    y_m: list[float]
+    spacing_m: float
+    ppfd: list[list[float]] = Field(description="Rows front to back, rounded to 0.1 µmol m⁻² s⁻¹ for display")
+    dli: list[list[float]] = Field(description="Rows front to back, rounded to 0.01 mol m⁻² d⁻¹ for display")
+
+
+class ZoneResult(Result):
+    id: str
+    name: str
+    crop_id: str
+    crop_name: str
+    stage: str
+    canopy_height_m: float
+    photoperiod_h: float
+    rect: list[float] = Field(description="x_m, y_m, width_m, length_m of the zone")
+    target: ZoneTarget
+    ppfd: AreaStats
+    dli: AreaStats
+    share_in_band: float
+    dark: AreaShare
+    hot: AreaShare
+    photoperiod_for_target_h: float | None
+    dimming_scale_for_target_mid: float | None
+    canopy_flux_umol_s: float
+    direct_share: float
+    reflected_share: float
+    area_m2: float
+    grid: ZoneGrid | None = None
+
+
+class FixtureResult(Result):
+    id: str
+    type_id: str
+    type_name: str
+    on: bool
+    ppf_umol_s: float = Field(description="PPF at the set dimming [µmol s⁻¹]")
+    power_w: float = Field(description="Input power at the set dimming [W]")
+    dimming_pct: float
+    circuit: str
+    hours_per_day: float
+    weight_kg: float
+
+
+class Energy(Result):
+    power_w: float
+    kwh_per_day: float
+    kwh_per_month: float
+    cost_per_day: float
+    cost_per_month: float
+    currency: str
+    price_per_kwh: float
+    layout_umol_per_j: float = Field(description="Emitted PPF per input watt of the whole layout [µmol J⁻¹]")
+    canopy_share_of_emitted: float
+    canopy_mol_per_kwh: float
+    month_days: float
+
+
+class Heat(Result):
+    w: float
+    btu_h: float = Field(description="1 W = 3.41214 BTU/h (NIST SP 811)")
+
+
+class CircuitResult(Result):
+    name: str
+    breaker_a: float
+    load_w: float
+    current_a: float
+    continuous_limit_a: float = Field(description="80 % of the breaker rating (continuous-load planning rule)")
+    limit_w: float
+    share_of_limit: float
+    ok: bool
+
+
+class WarningResult(Result):
+    code: str
+    severity: str = Field(description="info, warning or error")
+    message: str
+    fix: Any = Field(description="What would solve it: text, or a structured, verified change")
+    zone_id: str | None = None
+    fixture_id: str | None = None
+    where: list[float] | None = Field(default=None, description="x0, y0, x1, y1 of the place on the plan [m]")
+
+
+class RegionResult(Result):
+    name: str
+    zone_id: str
+    ppfd: AreaStats
+    area_m2: float
+
+
+class Budget(Result):
+    """Photon budget from the seeded ray tally, independent of the maps [µmol s⁻¹]."""
+
+    emitted_umol_s: float
+    zones_umol_s: dict[str, float]
+    floor_umol_s: float
+    obstacles_umol_s: float
+    walls_absorbed_umol_s: float
+    escaped_umol_s: float
+    unresolved_umol_s: float
+    accounted_umol_s: float
+
+
+class RoomHeader(Result):
+    name: str
+    revision: int
+    display_units: str
+    width_m: float
+    length_m: float
+    height_m: float
+
+
+class Analysis(Result):
+    """The whole analysis of a room, as every page, the API and the CLI show it."""
+
+    room: RoomHeader
+    zones: list[ZoneResult]
+    fixtures: list[FixtureResult]
+    fixture_zones: dict[str, str | None] = Field(
+        description="Fixture id -> id of the zone it lights (the one layout rule, app.room.layout)"
+    )
+    energy: Energy
+    heat: Heat
+    circuits: list[CircuitResult]
+    emitted_umol_s: float
+    regions: list[RegionResult]
+    warnings: list[WarningResult]
+    cautions: list[str]
+    compute_ms: float = Field(description="Engine time [ms]")
+    elapsed_ms: float = Field(description="Whole analysis, engine included [ms]")
+    budget: Budget | None = None
