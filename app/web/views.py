@@ -7,7 +7,7 @@ from typing import Any
 
 from app import __version__
 from app.room.layout import zone_lit_by
-from app.room.library import crops_for, fixture_library
+from app.room.library import crop_library, crops_for, fixture_library
 from app.room.models import WALL_FINISHES, RoomFile
 from app.room.roomfile import dump_room_file
 from app.room.storage import RoomStore
@@ -16,7 +16,17 @@ from app.service.drawings import heatmap_svg, plan_svg
 
 
 def room_list(store: RoomStore) -> dict[str, Any]:
-    return {"title": "Rooms", "rooms": [s.__dict__ for s in store.list()], "version": __version__}
+    """The room list, and what the new-room dialog offers (crops with their stages, library fixture types)."""
+    return {
+        "title": "Rooms",
+        "rooms": [s.__dict__ for s in store.list()],
+        "crops": [
+            {"id": c.id, "name": c.name, "daylength": c.daylength, "stages": list(c.stages)}
+            for c in crop_library().values()
+        ],
+        "fixture_library": [t.model_dump(mode="json") for t in fixture_library().values()],
+        "version": __version__,
+    }
 
 
 def editor(room_id: str, room_file: RoomFile, analysis: dict[str, Any]) -> dict[str, Any]:

@@ -4,34 +4,9 @@
 import * as Units from "../lib/units.js";
 import { state } from "./state.js";
 import { commit } from "./history.js";
+import { showFieldError, clearFieldError, clearAllFieldErrors } from "../lib/fieldmsg.js";
 
-let counter = 0;
-
-export function showFieldError(input, messages) {
-  const text = [].concat(messages).join("; ");
-  input.setAttribute("aria-invalid", "true");
-  let msg = input.nextElementSibling && input.nextElementSibling.classList.contains("field-msg") ? input.nextElementSibling : null;
-  if (!msg) {
-    msg = document.createElement("span");
-    msg.className = "field-msg";
-    msg.id = `field-msg-${++counter}`;
-    msg.setAttribute("role", "alert");
-    input.insertAdjacentElement("afterend", msg);
-  }
-  msg.textContent = `⚠ Not applied: ${text}.`;
-  input.setAttribute("aria-describedby", msg.id);
-}
-
-export function clearFieldError(input) {
-  input.removeAttribute("aria-invalid");
-  input.removeAttribute("aria-describedby");
-  const msg = input.nextElementSibling;
-  if (msg && msg.classList.contains("field-msg")) msg.remove();
-}
-
-export function clearAllFieldErrors(root = document) {
-  for (const input of root.querySelectorAll("[aria-invalid=true]")) clearFieldError(input);
-}
+export { showFieldError, clearFieldError, clearAllFieldErrors };
 
 export function setIfIdle(input, value) {
   if (document.activeElement !== input && input.getAttribute("aria-invalid") !== "true") input.value = value;

@@ -1,11 +1,12 @@
 // The map's colour scale and levels, fixed by the crops' bands so the colours mean the same before, during and
 // after a drag and on every tier; the dark and hot cells as rectangles for hatching.
 
-// Viridis (van der Walt & Smith, matplotlib, 2015), the ten stops plotly ships as "Viridis": given to plotly as
-// an explicit colour scale and interpolated the same way (linear RGB) by the drag preview.
-export const COLOUR_STOPS = ["#440154", "#482878", "#3e4989", "#31688e", "#26828e", "#1f9e89", "#35b779", "#6ece58", "#b5de2b", "#fde725"];
-export const COLOURSCALE = COLOUR_STOPS.map((c, i) => [i / (COLOUR_STOPS.length - 1), c]);
-const RGB = COLOUR_STOPS.map((h) => [1, 3, 5].map((k) => parseInt(h.slice(k, k + 2), 16)));
+import { page } from "./state.js";
+
+// The server's one colour scale (plotly's own Viridis table, app/service/colours.py): given to plotly as an
+// explicit colour scale and interpolated the same way (linear RGB, evenly spaced stops) by the drag preview.
+export const COLOURSCALE = page.colour_scale;
+const RGB = COLOURSCALE.map(([, h]) => [1, 3, 5].map((k) => parseInt(h.slice(k, k + 2), 16)));
 
 // DLI (mol m⁻² d⁻¹) = PPFD (µmol m⁻² s⁻¹) × hours × 3600 s/h / 10⁶ µmol/mol.
 export const DLI_PER_PPFD_HOUR = 0.0036;

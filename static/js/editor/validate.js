@@ -24,7 +24,7 @@ export function roomProblems(r, units) {
         z.y_m + z.length_m > r.length_m + EDGE_TOLERANCE_M) {
       out.push(`${z.name} (${L(z.width_m)} × ${L(z.length_m)} from ${L(z.x_m)}, ${L(z.y_m)}) would reach outside the room (${size})`);
     }
-    if (z.canopy_height_m >= r.height_m) out.push(`${z.name}'s canopy (${L(z.canopy_height_m)}) must be below the ceiling (${L(r.height_m)})`);
+    if (z.canopy_height_m >= r.height_m) out.push(`the canopy of ${z.name} (${L(z.canopy_height_m)}) must be below the ceiling (${L(r.height_m)})`);
   }
   for (const o of r.obstacles) {
     if (o.x_m + o.width_m > r.width_m + EDGE_TOLERANCE_M || o.y_m + o.length_m > r.length_m + EDGE_TOLERANCE_M ||
@@ -40,7 +40,7 @@ export function roomProblems(r, units) {
     for (const z of r.zones) {
       const over = z.x_m <= f.x_m && f.x_m <= z.x_m + z.width_m && z.y_m <= f.y_m && f.y_m <= z.y_m + z.length_m;
       if (over && Math.abs(f.hanging_height_m - z.canopy_height_m) < MIN_ABOVE_CANOPY_M) {
-        out.push(`fixture ${f.id} would be less than ${L(MIN_ABOVE_CANOPY_M)} from ${z.name}'s canopy`);
+        out.push(`fixture ${f.id} would be less than ${L(MIN_ABOVE_CANOPY_M)} from the canopy of ${z.name}`);
       }
     }
     for (const o of r.obstacles) {
