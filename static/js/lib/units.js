@@ -38,7 +38,8 @@ export function length(m, system, opts = {}) {
     const inch = `${p.inches}${p.eighths ? FRACTION_GLYPHS[p.eighths] : ""}″`;
     return p.ft ? `${p.sign === "-" ? "−" : ""}${p.ft}′ ${inch}` : `${p.sign === "-" ? "−" : ""}${inch}`;
   }
-  if (Math.abs(m) < 1) return `${round(m * 100, 1)} cm`;
+  // Decide on the rounded value, so 0.99996 m shows as 1 m, never as 100 cm.
+  if (Math.abs(round(m * 100, 1)) < 100) return `${round(m * 100, 1)} cm`;
   return `${round(m, 3)} m`;
 }
 
@@ -50,7 +51,7 @@ export function lengthInput(m, system) {
     const inch = p.eighths ? (p.inches ? `${p.inches} ${eighthText(p.eighths)}` : eighthText(p.eighths)) : `${p.inches}`;
     return p.ft ? `${p.sign}${p.ft}' ${inch}"` : `${p.sign}${inch}"`;
   }
-  if (Math.abs(m) < 1) return `${round(m * 100, 1)} cm`;
+  if (Math.abs(round(m * 100, 1)) < 100) return `${round(m * 100, 1)} cm`;
   return `${round(m, 4)} m`;
 }
 
