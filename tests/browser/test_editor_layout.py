@@ -50,7 +50,10 @@ def touch_drag(page, x, y, dx, dy, steps=8):
     cdp = page.context.new_cdp_session(page)
     cdp.send("Input.dispatchTouchEvent", {"type": "touchStart", "touchPoints": [{"x": x, "y": y}]})
     for k in range(1, steps + 1):
-        cdp.send("Input.dispatchTouchEvent", {"type": "touchMove", "touchPoints": [{"x": x + dx * k / steps, "y": y + dy * k / steps}]})
+        cdp.send(
+            "Input.dispatchTouchEvent",
+            {"type": "touchMove", "touchPoints": [{"x": x + dx * k / steps, "y": y + dy * k / steps}]},
+        )
         page.wait_for_timeout(20)
     cdp.send("Input.dispatchTouchEvent", {"type": "touchEnd", "touchPoints": []})
 

@@ -28,12 +28,18 @@ def test_new_room_dialog_makes_the_room_asked_for(live_server, page, artifacts):
     page.wait_for_url("**/rooms/basil-tent-5-x-5")  # the id follows the name
     wait_analysis_idle(page)
     doc = api(live_server, "/api/rooms/basil-tent-5-x-5")["room"]
-    assert_allclose([doc["width_m"], doc["length_m"], doc["height_m"]],
-                    [5 * M_PER_FT, 4 * M_PER_FT + 11.5 * M_PER_IN, 7 * M_PER_FT], atol=1e-4)
+    assert_allclose(
+        [doc["width_m"], doc["length_m"], doc["height_m"]],
+        [5 * M_PER_FT, 4 * M_PER_FT + 11.5 * M_PER_IN, 7 * M_PER_FT],
+        atol=1e-4,
+    )
     zone = doc["zones"][0]
     assert (zone["crop_id"], zone["stage"]) == ("basil", "vegetative")
-    assert_allclose([zone["width_m"], zone["length_m"], zone["canopy_height_m"]],
-                    [doc["width_m"], doc["length_m"], 1.5 * M_PER_FT], atol=1e-4)
+    assert_allclose(
+        [zone["width_m"], zone["length_m"], zone["canopy_height_m"]],
+        [doc["width_m"], doc["length_m"], 1.5 * M_PER_FT],
+        atol=1e-4,
+    )
     assert [f["type_id"] for f in doc["fixtures"]] == ["panel-0.6"]
     assert page.evaluate("() => window.leafcast.analysis.fixture_zones.F1") == zone["id"]
     assert page.errors == []

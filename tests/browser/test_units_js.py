@@ -20,8 +20,10 @@ def units(live_server, browser):
     page.evaluate("async () => { window.U = await import('/static/js/lib/units.js'); }")
 
     def call(fn, *args):
-        return page.evaluate("([fn, args]) => { try { return {ok: U[fn](...args)}; } catch (e) { return {error: e.message}; } }",
-                             [fn, list(args)])
+        return page.evaluate(
+            "([fn, args]) => { try { return {ok: U[fn](...args)}; } catch (e) { return {error: e.message}; } }",
+            [fn, list(args)],
+        )
 
     call.page = page
     yield call
@@ -44,7 +46,7 @@ def value(result):
         ("4' 6", "imperial", 54 * M_PER_IN),
         ("4.5 ft", "imperial", 4.5 * M_PER_FT),
         ("54", "imperial", 54 * M_PER_IN),
-        ("3/8\"", "imperial", 0.375 * M_PER_IN),
+        ('3/8"', "imperial", 0.375 * M_PER_IN),
         ("1,370 mm", "imperial", 1.37),
         ("1,370 mm", "metric", 1.37),
         ("1,37 m", "metric", 1.37),
@@ -60,7 +62,7 @@ def test_parse_length(units, text, system, metres):
     assert_allclose(value(units("parseLength", text, system)), metres, atol=1e-12)
 
 
-@pytest.mark.parametrize("text", ["abc", "4 6", "1/0\"", "", "5 mi", "6 ft ft"])
+@pytest.mark.parametrize("text", ["abc", "4 6", '1/0"', "", "5 mi", "6 ft ft"])
 def test_parse_length_refuses_with_a_reason(units, text):
     r = units("parseLength", text, "imperial")
     assert "error" in r and ("length" in r["error"]), r
@@ -116,7 +118,7 @@ def test_length_display(units, metres, system, shown):
 
 def test_input_form_is_typeable_ascii(units):
     assert value(units("lengthInput", 54.5 * M_PER_IN, "imperial")) == "4' 6 1/2\""
-    assert value(units("lengthInput", 0.375 * M_PER_IN, "imperial")) == "3/8\""
+    assert value(units("lengthInput", 0.375 * M_PER_IN, "imperial")) == '3/8"'
     assert value(units("lengthInput", 1.37, "metric")) == "1.37 m"
 
 

@@ -24,14 +24,30 @@ def dark_open_room(doc):
 def test_peak_under_a_spot_follows_the_inverse_square_law():
     doc = dark_open_room(sample_doc("hobby-tent-peppers"))
     room = doc["room"]
-    spot = {"id": "spot-90", "name": "Spot, 90°", "geometry": {"kind": "point"},
-            "beam": {"kind": "cosine_power", "beam_angle_deg": 90.0}, "ppf_umol_s": 240.0, "power_w": 100.0}
+    spot = {
+        "id": "spot-90",
+        "name": "Spot, 90°",
+        "geometry": {"kind": "point"},
+        "beam": {"kind": "cosine_power", "beam_angle_deg": 90.0},
+        "ppf_umol_s": 240.0,
+        "power_w": 100.0,
+    }
     room["fixture_types"] = [spot]
     z = room["zones"][0]
     drop = 0.6
-    room["fixtures"] = [{"id": "S1", "type_id": "spot-90", "x_m": z["x_m"] + z["width_m"] / 2, "y_m": z["y_m"] + z["length_m"] / 2,
-                         "hanging_height_m": z["canopy_height_m"] + drop, "rotation_deg": 0, "dimming_pct": 50, "on": True,
-                         "circuit": room["circuits"][0]["name"]}]
+    room["fixtures"] = [
+        {
+            "id": "S1",
+            "type_id": "spot-90",
+            "x_m": z["x_m"] + z["width_m"] / 2,
+            "y_m": z["y_m"] + z["length_m"] / 2,
+            "hanging_height_m": z["canopy_height_m"] + drop,
+            "rotation_deg": 0,
+            "dimming_pct": 50,
+            "on": True,
+            "circuit": room["circuits"][0]["name"],
+        }
+    ]
     fp = footprint(parse_room_file(to_json_bytes(doc)).room, "S1")
     r = fp["radius_cells"]
     # I(θ) = I0 cosⁿθ with half intensity at 45° (n = ln 0.5 / ln cos 45° = 2); Φ = 2π I0 / (n + 1) over the

@@ -14,7 +14,7 @@ import { renderFixturePanel, wireFixturePanel, removeSelected, rotateSelected, d
 import { renderRoomPanel, renderCircuits, wireRoomPanel } from "./panels/room.js";
 import { renderZones, renderObstacles, wireZonePanels } from "./panels/zones.js";
 import { wireDrawer, showTab } from "./drawer.js";
-import { previewDrag, endPreview } from "./preview.js";
+import { prefetch, startPreview, previewDrag, endPreview } from "./preview.js";
 
 window.leafcast = state; // a read-only handle for the browser tests, the benchmark and the curious
 
@@ -121,7 +121,7 @@ on("changed", (opts = {}) => {
   requestAnalysis();
   if (!opts.noSave) scheduleSave();
 });
-on("selection", () => { render(); if (state.selection.size) showTab("fixture", false); });
+on("selection", () => { render(); if (state.selection.size) { showTab("fixture", false); prefetch(state.selection); } });
 on("regions", () => { render(); requestAnalysis(); });
 on("map-zone", () => { fillMapZones(state.analysis); drawMap(); });
 on("moved", (id) => { history.replaceState(null, "", `/rooms/${id}`); });
@@ -138,6 +138,7 @@ const plan = createPlan($("plan"), {
     if (!state.selection.has(id)) state.selection = new Set([id]);
     remember();
     state.dragging = { origin: Object.fromEntries([...state.selection].map((sid) => [sid, [fixture(sid).x_m, fixture(sid).y_m]])) };
+    startPreview(state.selection);
   },
   onDrag(dx, dy) {
     if (!state.dragging) return;
@@ -156,7 +157,7 @@ const plan = createPlan($("plan"), {
   onDragEnd() {
     state.dragging = null;
     lastMoveAt = performance.now();
-    endPreview(true);
+    endPreview();
     state.dirty = true;
     render(); saveHistory();
     requestAnalysis(true);

@@ -23,7 +23,8 @@ export const state = {
   regions: [],                     // areas drawn to compare (not saved in the room file)
   lockedMax: null,                 // colour range the grower locked, per quantity, or null
   dragging: null,
-  timing: [],
+  timing: [],                      // exact answers: request, since the last move, map painted
+  previewFrames: [],               // composed drag previews: paint time, since the pointer moved
   ready: false,
 };
 
