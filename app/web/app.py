@@ -24,9 +24,9 @@ from app.service.planner import JobBoard
 from app.settings import Settings
 from app.web.errors import install_error_handlers
 from app.web.middleware import BodyLimit, LocalOnly
-from app.web.routes import analysis, footprints, library, pages, photometry, planner, rooms
+from app.web.routes import analysis, fixture_types, footprints, library, pages, photometry, planner, rooms
 
-ROUTERS = (pages, rooms, analysis, planner, photometry, library, footprints)
+ROUTERS = (pages, rooms, analysis, planner, photometry, library, footprints, fixture_types)
 
 
 def create_app(settings: Settings | None = None) -> FastAPI:

@@ -14,6 +14,7 @@ import { renderFixturePanel, wireFixturePanel, removeSelected, rotateSelected, d
 import { renderRoomPanel, renderCircuits, wireRoomPanel } from "./panels/room.js";
 import { renderZones, renderObstacles, wireZonePanels } from "./panels/zones.js";
 import { wireDrawer, showTab } from "./drawer.js";
+import { renderTypes } from "./panels/types.js";
 import { prefetch, startPreview, previewDrag, endPreview } from "./preview.js";
 
 window.leafcast = state; // a read-only handle for the browser tests, the benchmark and the curious
@@ -107,7 +108,7 @@ function fillTiers() {
   $("tier").value = state.tier;
 }
 function renderAll() {
-  render(); renderZones(); renderObstacles(); renderCircuits();
+  render(); renderZones(); renderObstacles(); renderCircuits(); renderTypes();
   if (state.analysis) { fillMapZones(state.analysis); renderFigures(state.analysis); renderRegions(state.analysis); renderWarnings(state.analysis, plan); drawMap(); }
 }
 
@@ -116,7 +117,7 @@ on("changed", (opts = {}) => {
   if (opts.history) clearAllFieldErrors();
   const ids = new Set(room().fixtures.map((f) => f.id));
   for (const id of [...state.selection]) if (!ids.has(id)) state.selection.delete(id);
-  render(); renderZones(); renderObstacles(); renderCircuits();
+  render(); renderZones(); renderObstacles(); renderCircuits(); renderTypes();
   saveHistory();
   requestAnalysis();
   if (!opts.noSave) scheduleSave();
