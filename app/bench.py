@@ -234,6 +234,27 @@ def sample(name: str) -> EngineScene:
     return build_scene(parse_room_file((asset_dir("sample_rooms") / f"{name}.json").read_bytes()).room)
 
 
+def bench_year() -> dict:
+    """The cycle-and-year page of the greenhouse sample: first call (pvlib import and the year of sun), then cold
+    analysis caches (the sun model stays cached for the process, as it does in the server)."""
+    from app.service.year import year_view
+
+    rf = parse_room_file((asset_dir("sample_rooms") / "greenhouse-lettuce-bench.json").read_bytes())
+    clear_all_caches()
+    t0 = time.perf_counter()
+    year_view("bench", rf)
+    first = time.perf_counter() - t0
+    runs = []
+    for _ in range(3):
+        clear_all_caches()
+        t0 = time.perf_counter()
+        year_view("bench", rf)
+        runs.append(time.perf_counter() - t0)
+    cold = statistics.median(runs)
+    print(f"cycle-and-year page, greenhouse-lettuce-bench: first call {first:.2f} s, then {cold:.2f} s with cold caches")
+    return {"scene": "year page greenhouse-lettuce-bench", "first_s": first, "cold_s": cold}
+
+
 def main(argv: list[str] | None = None) -> int:
     ap = argparse.ArgumentParser(prog="python -m app.bench", description=__doc__.splitlines()[0])
     ap.add_argument("--repeats", type=int, default=9)
@@ -241,6 +262,7 @@ def main(argv: list[str] | None = None) -> int:
     ap.add_argument("--json", type=Path, help="also write the figures to this file")
     ap.add_argument("--no-planner", action="store_true", help="skip the planner timings")
     ap.add_argument("--browser", action="store_true", help="also time pointer move to repainted map in Chromium")
+    ap.add_argument("--no-year", action="store_true", help="skip the cycle-and-year page timing")
     args = ap.parse_args(argv)
     rng = np.random.default_rng(1)
     results = [
@@ -296,6 +318,8 @@ def main(argv: list[str] | None = None) -> int:
                 f"planner, {name} ({', '.join(types)}): first feasible layout {first:.2f} s, final answer {final:.2f} s"
             )
             results.append({"scene": f"planner {name}", "first_feasible_s": first, "final_s": final})
+    if not args.no_year:
+        results.append(bench_year())
     if args.browser:
         for r in browser_latency(["hobby-tent-4-x-4-ft-peppers", "basement-room-10-x-12-ft-two-benches"]):
             print(

@@ -1,4 +1,4 @@
-"""Command line: ``leafcast serve``, ``leafcast check FILE``, ``leafcast report FILE``."""
+"""Command line: ``leafcast serve``, ``check FILE``, ``report FILE``, ``export FILE --dxf DIR``."""
 
 from __future__ import annotations
 
@@ -22,12 +22,26 @@ def _serve(args) -> int:
         host=args.host,
         port=args.port,
         seed_samples=not args.no_samples,
+        max_analysis_s=args.max_analysis_s,
+        analysis_workers=args.analysis_workers,
     )
     app = create_app(settings)
     print(f"Leafcast {__version__}: rooms in {settings.data_dir}")
+    for room_id in app.state.restored:
+        print(f"Room '{room_id}' had no file after a crash: restored from its previous revision.")
     print(f"Open http://{args.host}:{args.port}/ in a browser (Ctrl+C stops).", flush=True)
     uvicorn.run(app, host=args.host, port=args.port, log_level="warning")
     return 0
+
+
+def _positive_seconds(text: str) -> float:
+    try:
+        value = float(text)
+    except ValueError:
+        value = float("nan")
+    if not 0 < value <= 3600:
+        raise argparse.ArgumentTypeError(f"'{text}' is not a number of seconds between 0 and 3600")
+    return value
 
 
 def _load(path: str):
@@ -126,6 +140,29 @@ def _report(args) -> int:
     return 0
 
 
+def _export(args) -> int:
+    from app.service.dxf_export import plan_dxf, tier_count
+    from app.web.routes.sheet import dxf_filename
+
+    try:
+        rf = _load(args.file)
+    except RoomFileError as exc:
+        print(f"{args.file}: cannot export: " + ("no such file" if exc.kind == "missing" else str(exc)), file=sys.stderr)
+        return 1
+    out = Path(args.dxf)
+    if out.exists() and not out.is_dir():
+        print(f"--dxf {args.dxf}: not a folder", file=sys.stderr)
+        return 2
+    out.mkdir(parents=True, exist_ok=True)
+    for n in range(1, tier_count(rf.room) + 1):
+        path = out / dxf_filename(rf.room.name, n)
+        tmp = path.with_suffix(".dxf.tmp")
+        tmp.write_bytes(plan_dxf(rf.room, n))
+        tmp.replace(path)  # atomic: a reader never sees half a file
+        print(path)
+    return 0
+
+
 def main(argv: list[str] | None = None) -> int:
     ap = argparse.ArgumentParser(prog="leafcast", description="Lay out grow-room lighting.")
     ap.add_argument("--version", action="version", version=f"leafcast {__version__}")
@@ -135,6 +172,20 @@ def main(argv: list[str] | None = None) -> int:
     s.add_argument("--port", type=int, default=8000)
     s.add_argument("--data-dir", default=None, help="where rooms are stored (default: the user data folder)")
     s.add_argument("--no-samples", action="store_true", help="do not copy the sample rooms into an empty data folder")
+    s.add_argument(
+        "--max-analysis-s",
+        type=_positive_seconds,
+        default=20.0,
+        help="time budget of one analysis in seconds: longer ones are refused up front or stopped (default 20)",
+    )
+    s.add_argument(
+        "--analysis-workers",
+        type=int,
+        choices=range(1, 9),
+        default=2,
+        metavar="N",
+        help="analyses computed at once, 1-8 (default 2); pages and the room list never wait for them",
+    )
     s.set_defaults(func=_serve)
     c = sub.add_parser("check", help="validate a room file")
     c.add_argument("file")
@@ -144,6 +195,10 @@ def main(argv: list[str] | None = None) -> int:
     r.add_argument("--json", action="store_true", help="machine-readable output")
     r.add_argument("--grid-csv", metavar="DIR", help="write each zone's PPFD and DLI grid as CSV into DIR")
     r.set_defaults(func=_report)
+    x = sub.add_parser("export", help="write the sheet's plan of each tier as DXF for CAD")
+    x.add_argument("file")
+    x.add_argument("--dxf", metavar="DIR", required=True, help="folder for one DXF per tier (created if missing)")
+    x.set_defaults(func=_export)
     args = ap.parse_args(argv)
     return args.func(args)
 

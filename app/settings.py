@@ -34,6 +34,8 @@ class Settings:
     samples_dir: Path | None = field(default_factory=lambda: asset_dir("sample_rooms"))
     seed_samples: bool = True
     extra_allowed_hosts: frozenset[str] = frozenset()
+    max_analysis_s: float = 20.0  # an analysis that would take longer is refused up front or cancelled (503)
+    analysis_workers: int = 2  # analyses computed at once; the rest wait (small requests never do)
 
     @property
     def allowed_hosts(self) -> frozenset[str]:

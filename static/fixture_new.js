@@ -37,7 +37,7 @@
     const reader = new FileReader();
     reader.onload = async () => {
       try {
-        const out = await post(`/api/photometry/import?${params}`, reader.result, "text/plain");
+        const out = await post(`/api/photometry/import?${params}`, reader.result, "application/octet-stream");
         const r = out.report;
         say("ph-message", `Read ${file.name}.`, false);
         $("ph-report").innerHTML = `<table class="figures"><tbody>

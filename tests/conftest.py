@@ -38,7 +38,8 @@ def client(tmp_path):
     from app.web import create_app
 
     app = create_app(Settings(data_dir=tmp_path / "data"))
-    with TestClient(app, base_url="http://127.0.0.1") as c:
+    # Bodies are JSON unless a test says otherwise: the API refuses other types (415, app/web/guards.py).
+    with TestClient(app, base_url="http://127.0.0.1", headers={"Content-Type": "application/json"}) as c:
         yield c
 
 

@@ -4,6 +4,8 @@ import json
 
 from tests.conftest import SAMPLES, sample_doc
 
+JSON = {"Content-Type": "application/json"}
+
 
 def test_room_list_has_the_samples(client):
     rooms = client.get("/api/rooms").json()
@@ -12,13 +14,13 @@ def test_room_list_has_the_samples(client):
 
 
 def test_create_read_update_delete(client, tent_doc):
-    r = client.post("/api/rooms", content=json.dumps(tent_doc))
+    r = client.post("/api/rooms", content=json.dumps(tent_doc), headers=JSON)
     assert r.status_code == 201
     room_id, rev = r.json()["id"], r.json()["revision"]
     doc = client.get(f"/api/rooms/{room_id}").json()
     assert doc["revision"] == rev
     doc["room"]["fixtures"][0]["dimming_pct"] = 55
-    r = client.put(f"/api/rooms/{room_id}", content=json.dumps(doc))
+    r = client.put(f"/api/rooms/{room_id}", content=json.dumps(doc), headers=JSON)
     assert r.status_code == 200 and r.json()["revision"] == rev + 1
     assert client.get(f"/api/rooms/{room_id}").json()["room"]["fixtures"][0]["dimming_pct"] == 55
     assert client.delete(f"/api/rooms/{room_id}").status_code == 204
@@ -26,13 +28,13 @@ def test_create_read_update_delete(client, tent_doc):
 
 
 def test_stale_revision_gets_409_and_changes_nothing(client, tent_doc):
-    room_id = client.post("/api/rooms", content=json.dumps(tent_doc)).json()["id"]
+    room_id = client.post("/api/rooms", content=json.dumps(tent_doc), headers=JSON).json()["id"]
     a = client.get(f"/api/rooms/{room_id}").json()
     b = json.loads(json.dumps(a))
     a["room"]["name"] = "Saved first"
-    assert client.put(f"/api/rooms/{room_id}", content=json.dumps(a)).status_code == 200
+    assert client.put(f"/api/rooms/{room_id}", content=json.dumps(a), headers=JSON).status_code == 200
     b["room"]["name"] = "Saved second, from a stale copy"
-    r = client.put(f"/api/rooms/{room_id}", content=json.dumps(b))
+    r = client.put(f"/api/rooms/{room_id}", content=json.dumps(b), headers=JSON)
     assert r.status_code == 409
     assert r.json()["error"] == "stale_revision" and r.json()["current_revision"] == 2
     assert client.get(f"/api/rooms/{room_id}").json()["room"]["name"] == "Saved first"
@@ -40,7 +42,7 @@ def test_stale_revision_gets_409_and_changes_nothing(client, tent_doc):
 
 def test_validation_error_names_field(client, tent_doc):
     tent_doc["room"]["fixtures"][0]["dimming_pct"] = 3
-    r = client.post("/api/rooms", content=json.dumps(tent_doc))
+    r = client.post("/api/rooms", content=json.dumps(tent_doc), headers=JSON)
     assert r.status_code == 422
     body = r.json()
     assert body["problems"][0]["field"] == "room.fixtures[0].dimming_pct"
@@ -48,9 +50,9 @@ def test_validation_error_names_field(client, tent_doc):
 
 
 def test_import_collision_gets_a_new_name(client, tent_doc):
-    first = client.post("/api/rooms/import", content=json.dumps(tent_doc)).json()
+    first = client.post("/api/rooms/import", content=json.dumps(tent_doc), headers=JSON).json()
     assert first["name"] == tent_doc["room"]["name"] + " (2)"  # the sample is already there
-    second = client.post("/api/rooms/import", content=json.dumps(tent_doc)).json()
+    second = client.post("/api/rooms/import", content=json.dumps(tent_doc), headers=JSON).json()
     assert second["id"] != first["id"] and second["name"].endswith("(3)")
 
 
@@ -59,7 +61,7 @@ def test_export_import_gives_the_same_analysis(client):
     for r in rooms:
         exported = client.get(f"/api/rooms/{r['id']}/file")
         assert exported.headers["content-disposition"].startswith("attachment")
-        new = client.post("/api/rooms/import", content=exported.content).json()
+        new = client.post("/api/rooms/import", content=exported.content, headers=JSON).json()
         a = client.get(f"/api/rooms/{r['id']}/analysis").json()
         b = client.get(f"/api/rooms/{new['id']}/analysis").json()
         for za, zb in zip(a["zones"], b["zones"], strict=True):
@@ -80,14 +82,14 @@ def test_hostile_files(client, tent_doc):
     }
     before = client.get("/api/rooms").json()
     for name, body in cases.items():
-        r = client.post("/api/rooms/import", content=body)
+        r = client.post("/api/rooms/import", content=body, headers=JSON)
         assert r.status_code == 422, name
         assert r.json()["message"], name
     assert client.get("/api/rooms").json() == before
 
 
 def test_body_size_limit(client):
-    r = client.post("/api/rooms/import", content=b"x" * (9 * 1024 * 1024))
+    r = client.post("/api/rooms/import", content=b"x" * (9 * 1024 * 1024), headers=JSON)
     assert r.status_code == 413 and r.json()["error"] == "too_large"
 
 
@@ -101,6 +103,7 @@ def test_analysis_of_a_posted_room(client, tent_doc):
     r = client.post(
         "/api/analyze",
         content=json.dumps(tent_doc),
+        headers=JSON,
         params={"budget": "true", "region": ["centre,0.45,0.45,0.3,0.3", "edge,0,0,0.2,1.2"]},
     )
     assert r.status_code == 200
@@ -113,7 +116,7 @@ def test_analysis_of_a_posted_room(client, tent_doc):
 
 
 def test_bad_region_is_422(client, tent_doc):
-    r = client.post("/api/analyze", content=json.dumps(tent_doc), params={"region": ["oops,1,2"]})
+    r = client.post("/api/analyze", content=json.dumps(tent_doc), params={"region": ["oops,1,2"]}, headers=JSON)
     assert r.status_code == 422 and "region[0]" in r.json()["message"]
 
 

@@ -207,7 +207,7 @@ def test_api_import_fit_and_spectrum(client):
         "/api/photometry/import",
         params={"kind": "ies", "flux_unit": "photon", "name": "Test panel"},
         content=ies_text().encode(),
-        headers={"Content-Type": "text/plain"},
+        headers={"Content-Type": "application/octet-stream"},
     )
     assert r.status_code == 200, r.text
     assert r.json()["fixture_type"]["beam"]["kind"] == "tabulated"
@@ -217,7 +217,7 @@ def test_api_import_fit_and_spectrum(client):
         "/api/photometry/import",
         params={"kind": "ies", "flux_unit": "photon"},
         content=ies_text(ptype=3).encode(),
-        headers={"Content-Type": "text/plain"},
+        headers={"Content-Type": "application/octet-stream"},
     )
     assert bad.status_code == 422 and "type A" in bad.json()["message"] and "line" in bad.json()["message"]
     readings = [[100.0 + 10 * min(i, 4 - i, j, 4 - j) for i in range(5)] for j in range(5)]

@@ -129,7 +129,8 @@ numbers = st.floats(min_value=0.05, max_value=0.95)
     dim=st.floats(10, 100),
     rot=st.sampled_from([0.0, 90.0, 180.0, 270.0]),
     photo=st.one_of(st.none(), st.floats(1, 24)),
-    name=st.text(min_size=1, max_size=60).filter(str.strip),
+    # Names as a grower types them: no control characters (refused with their own message), not blank.
+    name=st.text(st.characters(blacklist_categories=("Cc", "Cs")), min_size=1, max_size=60).filter(str.strip),
     units=st.sampled_from(["imperial", "metric"]),
 )
 def test_round_trip_save_load_export_import(tmp_path_factory, fx, fy, dim, rot, photo, name, units):

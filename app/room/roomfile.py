@@ -13,6 +13,7 @@ from __future__ import annotations
 
 import json
 import math
+import re
 from collections import Counter
 from collections.abc import Iterable
 from dataclasses import dataclass
@@ -23,6 +24,7 @@ from pydantic import ValidationError
 from app.room import layout, limits
 from app.room.library import crops_for
 from app.room.models import FORMAT_NAME, FORMAT_VERSION, Room, RoomFile
+from app.room.year_checks import year_problems
 
 _EDGE_TOLERANCE_M = 0.001  # a fixture's edge may touch a wall
 
@@ -68,6 +70,62 @@ def _pydantic_problems(err: ValidationError) -> list[Problem]:
     return problems
 
 
+_STRING_RE = re.compile(r'"(?:[^"\\]|\\.)*"')
+_BRACKET_RE = re.compile(r"[\[\]{}]")
+_LONG_DIGITS_RE = re.compile(rf"\d{{{limits.MAX_NUMBER_DIGITS + 1},}}")
+_CONTROL_RE = re.compile(r"[\x00-\x1f\x7f-\x9f]")
+
+
+def nesting_depth(text: str, strings_removed: bool = False) -> int:
+    """Deepest nesting of arrays and objects in JSON text, counted outside strings, without parsing it."""
+    depth = deepest = 0
+    for ch in _BRACKET_RE.findall(text if strings_removed else _STRING_RE.sub("", text)):
+        if ch in "[{":
+            depth += 1
+            deepest = max(deepest, depth)
+        else:
+            depth -= 1
+    return deepest
+
+
+def _parse_int(text: str) -> int:
+    if len(text.lstrip("-")) > limits.MAX_NUMBER_DIGITS:
+        raise _NumberTooLong(text)
+    return int(text)
+
+
+def _parse_float(text: str) -> float:
+    value = float(text)
+    if len(text) > limits.MAX_NUMBER_CHARS or not math.isfinite(value):
+        raise _NumberTooLong(text)
+    return value
+
+
+class _NumberTooLong(ValueError):
+    def __init__(self, text: str) -> None:
+        self.text = text
+        what = f"a number {len(text):,} characters long ({text[:12]}...)" if len(text) > 20 else f"the number {text}"
+        super().__init__(
+            f"{what} is not allowed; room files use numbers of at most {limits.MAX_NUMBER_DIGITS} digits, "
+            "within the range of ordinary measurements"
+        )
+
+
+def json_shape_problem(text: str) -> str | None:
+    """Why JSON text is refused before parsing (too deeply nested, a number too long), or None."""
+    stripped = _STRING_RE.sub('""', text)
+    depth = nesting_depth(stripped, strings_removed=True)
+    if depth > limits.MAX_NESTING_DEPTH:
+        return f"arrays and objects are nested {depth:,} deep; Leafcast accepts at most {limits.MAX_NESTING_DEPTH}"
+    long_number = _LONG_DIGITS_RE.search(stripped)
+    if long_number:
+        return (
+            f"a number of {len(long_number.group()):,} digits is not allowed; numbers have at most "
+            f"{limits.MAX_NUMBER_DIGITS} digits"
+        )
+    return None
+
+
 def decode(raw: bytes | str) -> Any:
     if isinstance(raw, bytes):
         if len(raw) > limits.MAX_BODY_BYTES:
@@ -79,23 +137,41 @@ def decode(raw: bytes | str) -> Any:
             raw = raw.decode("utf-8")
         except UnicodeDecodeError as exc:
             raise RoomFileError([Problem("(document)", f"not UTF-8 text ({exc.reason})")], "not_a_room_file") from exc
+    depth = nesting_depth(raw)
+    if depth > limits.MAX_NESTING_DEPTH:
+        raise RoomFileError(
+            [
+                Problem(
+                    "(document)",
+                    f"arrays and objects are nested {depth:,} deep; a room file needs at most "
+                    f"{limits.MAX_NESTING_DEPTH}: this is not a Leafcast room file",
+                )
+            ],
+            kind="not_a_room_file",
+        )
     try:
-        return json.loads(raw, parse_constant=_refuse_constant)
+        return json.loads(raw, parse_constant=_refuse_constant, parse_int=_parse_int, parse_float=_parse_float)
     except json.JSONDecodeError as exc:
         raise RoomFileError(
             [Problem("(document)", f"not valid JSON: {exc.msg} at line {exc.lineno}, column {exc.colno}")],
             kind="not_a_room_file",
         ) from exc
-    except ValueError as exc:
+    except _NumberTooLong as exc:
         raise RoomFileError([Problem("(document)", str(exc))], kind="invalid_room_file") from exc
+    except (ValueError, RecursionError) as exc:
+        raise RoomFileError([Problem("(document)", str(exc)[:200])], kind="invalid_room_file") from exc
 
 
 def _refuse_constant(name: str) -> None:
     raise ValueError(f"{name} is not allowed in a room file; use finite numbers")
 
 
-def parse_room_file(data: bytes | str | Any) -> RoomFile:
-    """Validate a room file completely, or raise :class:`RoomFileError`."""
+def parse_room_file(data: bytes | str | Any, strict_text: bool = True) -> RoomFile:
+    """Validate a room file completely, or raise :class:`RoomFileError`.
+
+    ``strict_text`` refuses control characters and blank names (new input); rooms already on disk are read
+    without it, so a file saved before the rule still opens.
+    """
     if isinstance(data, bytes | str):
         data = decode(data)
     if not isinstance(data, dict) or data.get("format") != FORMAT_NAME:
@@ -105,6 +181,18 @@ def parse_room_file(data: bytes | str | Any) -> RoomFile:
             kind="not_a_room_file",
         )
     version = data.get("version")
+    if "version" in data and (not isinstance(version, int) or isinstance(version, bool) or version < 1):
+        raise RoomFileError(
+            [
+                Problem(
+                    "version",
+                    f"the version must be a whole number such as {FORMAT_VERSION}, found {str(version)[:40]!r}: "
+                    "this is not a Leafcast room file, or it was made by a newer Leafcast (update Leafcast to "
+                    "open it)",
+                )
+            ],
+            kind="not_a_room_file",
+        )
     if isinstance(version, int) and not isinstance(version, bool) and version > FORMAT_VERSION:
         raise RoomFileError(
             [
@@ -116,6 +204,9 @@ def parse_room_file(data: bytes | str | Any) -> RoomFile:
             ],
             kind="newer_version",
         )
+    text_problems = list(_text_problems(data, "")) if strict_text else []
+    if text_problems:
+        raise RoomFileError(text_problems)
     try:
         room_file = RoomFile.model_validate(data)
     except ValidationError as exc:
@@ -124,6 +215,25 @@ def parse_room_file(data: bytes | str | Any) -> RoomFile:
     if problems:
         raise RoomFileError(problems)
     return room_file
+
+
+_NAME_KEYS = frozenset({"name", "label"})
+
+
+def _text_problems(node: Any, path: str):
+    """Control characters in any text of the file, and names that are only spaces."""
+    if isinstance(node, dict):
+        for key, value in node.items():
+            sub = f"{path}.{key}" if path else str(key)
+            if isinstance(value, str) and key in _NAME_KEYS and value and not value.strip():
+                yield Problem(sub, "must not be blank (only spaces)")
+            yield from _text_problems(value, sub)
+    elif isinstance(node, list):
+        for i, value in enumerate(node):
+            yield from _text_problems(value, f"{path}[{i}]")
+    elif isinstance(node, str) and _CONTROL_RE.search(node):
+        bad = _CONTROL_RE.search(node).group()
+        yield Problem(path, f"contains a control character (U+{ord(bad):04X}); use plain text")
 
 
 def _duplicates(prefix: str, ids: list[str]) -> list[Problem]:
@@ -144,6 +254,18 @@ def grid_point_count(room: Room) -> int:
     return sum((math.floor(z.width_m / s) + 1) * (math.floor(z.length_m / s) + 1) for z in room.zones)
 
 
+def _entry_problems(room: Room) -> list[Problem]:
+    """The entry must fit on its wall."""
+    e = room.entry
+    wall = room.width_m if e.side in ("front", "back") else room.length_m
+    out = []
+    if e.width_m is not None and e.width_m > wall + _EDGE_TOLERANCE_M:
+        out.append(Problem("room.entry.width_m", f"{e.width_m:g} m is wider than the {e.side} wall ({wall:g} m)"))
+    if e.offset_m is not None and e.offset_m > wall + _EDGE_TOLERANCE_M:
+        out.append(Problem("room.entry.offset_m", f"{e.offset_m:g} m is past the end of the {e.side} wall ({wall:g} m)"))
+    return out
+
+
 def consistency_problems(room_file: RoomFile) -> list[Problem]:
     """Checks that need the whole room. Returns every problem found."""
     room = room_file.room
@@ -158,6 +280,7 @@ def consistency_problems(room_file: RoomFile) -> list[Problem]:
             p.append(Problem(f"room.circuits[{i}].name", f"duplicate circuit name '{c}'"))
     if len(set(room.open_sides)) != len(room.open_sides):
         p.append(Problem("room.open_sides", "each side may be listed once"))
+    p += _entry_problems(room)
 
     W, L, H = room.width_m, room.length_m, room.height_m
     tol = _EDGE_TOLERANCE_M
@@ -221,6 +344,9 @@ def consistency_problems(room_file: RoomFile) -> list[Problem]:
             ):
                 p.append(Problem(at, f"fixture '{f.id}' is inside obstacle '{o.id}'"))
 
+    p += reading_problems(room)
+
+    p += [Problem(field, reason) for field, reason in year_problems(room_file)]
     points = grid_point_count(room)
     if points > limits.MAX_GRID_POINTS:
         p.append(
@@ -230,6 +356,46 @@ def consistency_problems(room_file: RoomFile) -> list[Problem]:
                 f"{limits.MAX_GRID_POINTS:,}: use a coarser spacing",
             )
         )
+    return p
+
+
+def reading_problems(room: Room) -> list[Problem]:
+    """Readings name a zone of the room and lie inside it (a grid must fit, every point too)."""
+    p = _duplicates("room.readings", [r.id for r in room.readings])
+    zones = {z.id: z for z in room.zones}
+    tol = _EDGE_TOLERANCE_M
+    for i, r in enumerate(room.readings):
+        at = f"room.readings[{i}]"
+        z = zones.get(r.zone_id)
+        if z is None:
+            p.append(Problem(f"{at}.zone_id", f"unknown zone '{r.zone_id}'; the room has {sorted(zones)}"))
+            continue
+        x0, x1, y0, y1 = z.x_m - tol, z.x_m + z.width_m + tol, z.y_m - tol, z.y_m + z.length_m + tol
+        if r.grid is not None:
+            g = r.grid
+            rows, cols = len(g.values), len(g.values[0])
+            far_x = g.origin_x_m + (cols - 1) * g.spacing_x_m
+            far_y = g.origin_y_m + (rows - 1) * g.spacing_y_m
+            if not (x0 <= g.origin_x_m and far_x <= x1 and y0 <= g.origin_y_m and far_y <= y1):
+                p.append(
+                    Problem(
+                        f"{at}.grid",
+                        f"the grid of {rows} rows x {cols} columns does not fit zone '{z.id}': it spans "
+                        f"x {g.origin_x_m:.3g}-{far_x:.3g} m, y {g.origin_y_m:.3g}-{far_y:.3g} m, the zone "
+                        f"x {z.x_m:.3g}-{z.x_m + z.width_m:.3g} m, y {z.y_m:.3g}-{z.y_m + z.length_m:.3g} m",
+                    )
+                )
+            if all(v is None for row in g.values for v in row):
+                p.append(Problem(f"{at}.grid.values", "the grid holds no reading"))
+        for j, pt in enumerate(r.points):
+            if not (x0 <= pt.x_m <= x1 and y0 <= pt.y_m <= y1):
+                p.append(
+                    Problem(
+                        f"{at}.points[{j}]",
+                        f"reading at ({pt.x_m:.3g}, {pt.y_m:.3g}) m is outside zone '{z.id}' "
+                        f"(x {z.x_m:.3g}-{z.x_m + z.width_m:.3g} m, y {z.y_m:.3g}-{z.y_m + z.length_m:.3g} m)",
+                    )
+                )
     return p
 
 

@@ -1,17 +1,33 @@
-"""Rooms on disk: one room file per room in a data folder, saved atomically.
+"""Rooms on disk: one room file per room in a data folder, saved with no moment where the room is missing.
 
-Each save writes a temporary file in the same folder, flushes and fsyncs it,
-keeps the current file as ``<slug>.prev.json`` and renames the new one into
-place, so a crash or a full disk never leaves a half-written or lost room.
-A save names the revision it was based on; a stale one is refused.
+A save goes in four steps, each safe to be killed after:
+
+1. ``temp_written``: the new revision is written to a temporary file in the same folder, flushed and fsynced;
+2. ``previous_kept``: the current file is hard-linked (copied where links are not possible) to a temporary
+   name and renamed over ``<id>.prev.json`` (the previous revision, kept for a restore);
+3. ``replaced``: one ``os.replace`` puts the new file in place of ``<id>.json`` (atomic on POSIX: a reader sees
+   the old file or the new one, never neither);
+4. ``folder_synced``: the folder is fsynced so the renames survive a power cut.
+
+On start (:meth:`RoomStore.recover`) a room whose file is missing but whose ``.prev.json`` exists is restored,
+and temporary files older than a minute (left by a crash) are removed. A full disk raises :class:`StorageFull`
+and leaves the room as it was. A save names the revision it was based on; a stale one is refused.
+
+For tests only: ``LEAFCAST_FAULT_AFTER_STEP=<step>`` kills the process with SIGKILL right after that step of a
+write, to prove a crash at any point loses nothing.
 """
 
 from __future__ import annotations
 
+import errno
+import logging
 import os
 import re
+import shutil
+import signal
 import tempfile
 import threading
+import time
 import unicodedata
 from dataclasses import dataclass
 from pathlib import Path
@@ -21,6 +37,14 @@ from app.room.roomfile import RoomFileError, dump_room_file, parse_room_file, to
 
 SUFFIX = ".json"
 PREV_SUFFIX = ".prev.json"
+TMP_SUFFIX = ".tmp"
+MAX_ID_CHARS = 80  # ids are slugs of at most 48 characters plus a "-N" suffix; longer is never a room
+ORPHAN_AGE_S = 60.0  # a temporary file older than this belongs to no running save
+FAULT_ENV = "LEAFCAST_FAULT_AFTER_STEP"  # tests only: SIGKILL after the named save step
+SAVE_STEPS = ("temp_written", "previous_kept", "replaced", "folder_synced")
+_FULL_ERRNOS = {errno.ENOSPC, errno.EDQUOT, errno.EFBIG}
+
+log = logging.getLogger("leafcast.storage")
 
 
 _ID_RE = re.compile(r"[a-z0-9]+(?:-[a-z0-9]+)*")
@@ -28,6 +52,10 @@ _ID_RE = re.compile(r"[a-z0-9]+(?:-[a-z0-9]+)*")
 
 class RoomNotFound(KeyError):
     pass
+
+
+class StorageFull(OSError):
+    """The disk (or quota) is full: nothing was changed."""
 
 
 class StaleRevision(Exception):
@@ -62,7 +90,7 @@ class RoomStore:
 
     # -- paths ---------------------------------------------------------
     def _path(self, room_id: str, suffix: str = SUFFIX) -> Path:
-        if not _ID_RE.fullmatch(room_id):
+        if len(room_id) > MAX_ID_CHARS or not _ID_RE.fullmatch(room_id):
             raise RoomNotFound(room_id)
         path = (self.rooms_dir / f"{room_id}{suffix}").resolve()
         if path.parent != self.rooms_dir.resolve():  # belt and braces: never leave the folder
@@ -76,17 +104,19 @@ class RoomStore:
             return False
 
     # -- reading -------------------------------------------------------
+    def _read(self, room_id: str, suffix: str = SUFFIX) -> bytes:
+        """The file's bytes; a file that is missing (or deleted while we read) is the room's 404."""
+        path = self._path(room_id, suffix)
+        try:
+            return path.read_bytes()
+        except (FileNotFoundError, IsADirectoryError, NotADirectoryError) as exc:
+            raise RoomNotFound(room_id) from exc
+
     def load(self, room_id: str) -> RoomFile:
-        path = self._path(room_id)
-        if not path.is_file():
-            raise RoomNotFound(room_id)
-        return parse_room_file(path.read_bytes())
+        return parse_room_file(self._read(room_id), strict_text=False)
 
     def load_previous(self, room_id: str) -> RoomFile:
-        path = self._path(room_id, PREV_SUFFIX)
-        if not path.is_file():
-            raise RoomNotFound(room_id)
-        return parse_room_file(path.read_bytes())
+        return parse_room_file(self._read(room_id, PREV_SUFFIX), strict_text=False)
 
     def list(self) -> list[RoomSummary]:
         out = []
@@ -94,28 +124,64 @@ class RoomStore:
             if path.name.endswith(PREV_SUFFIX):
                 continue
             try:
-                rf = parse_room_file(path.read_bytes())
-            except RoomFileError:
-                continue  # a damaged file is skipped in the list, never deleted
+                rf = parse_room_file(path.read_bytes(), strict_text=False)
+            except (RoomFileError, FileNotFoundError):
+                continue  # a damaged file is skipped in the list, never deleted; a deleted one is gone
             out.append(RoomSummary(path.stem, rf.room.name, rf.revision, len(rf.room.fixtures), len(rf.room.zones)))
         return out
 
     # -- writing -------------------------------------------------------
     def _write_atomic(self, path: Path, data: bytes) -> None:
-        fd, tmp = tempfile.mkstemp(dir=path.parent, prefix=f".{path.stem}.", suffix=".tmp")
+        """Write ``data`` as ``path`` keeping the current file as the previous revision; ``path`` never vanishes."""
+        tmp = None
+        try:
+            tmp = self._temp_file(path, data)
+            _fault_point("temp_written")
+            if path.exists():
+                self._keep_previous(path)
+                _fault_point("previous_kept")
+            os.replace(tmp, path)
+            tmp = None
+            _fault_point("replaced")
+            _fsync_dir(path.parent)
+            _fault_point("folder_synced")
+        except OSError as exc:
+            if exc.errno in _FULL_ERRNOS:
+                raise StorageFull(
+                    exc.errno, f"the disk holding {path.parent} is full; the room was not changed"
+                ) from exc
+            raise
+        finally:
+            if tmp is not None:
+                Path(tmp).unlink(missing_ok=True)
+
+    def _temp_file(self, path: Path, data: bytes) -> str:
+        fd, tmp = tempfile.mkstemp(dir=path.parent, prefix=f".{path.stem}.", suffix=TMP_SUFFIX)
         try:
             with os.fdopen(fd, "wb") as fh:
                 fh.write(data)
                 fh.flush()
                 os.fsync(fh.fileno())
-            if path.exists():
-                os.replace(path, path.with_name(path.stem + PREV_SUFFIX))
-            os.replace(tmp, path)
         except BaseException:
             Path(tmp).unlink(missing_ok=True)
-            if not path.exists() and path.with_name(path.stem + PREV_SUFFIX).exists():
-                # The old file was moved aside but the new one never landed: put it back.
-                os.replace(path.with_name(path.stem + PREV_SUFFIX), path)
+            raise
+        return tmp
+
+    def _keep_previous(self, path: Path) -> None:
+        """The current file becomes ``<id>.prev.json`` by a hard link renamed into place (a copy if no links)."""
+        prev = path.with_name(path.stem + PREV_SUFFIX)
+        link = path.with_name(f".{path.stem}.prev-{os.getpid()}-{threading.get_ident()}{TMP_SUFFIX}")
+        link.unlink(missing_ok=True)
+        try:
+            os.link(path, link)
+        except OSError as exc:
+            if exc.errno in _FULL_ERRNOS:
+                raise
+            shutil.copy2(path, link)  # a filesystem without hard links
+        try:
+            os.replace(link, prev)
+        except BaseException:
+            link.unlink(missing_ok=True)
             raise
 
     def unique_id(self, name: str) -> str:
@@ -143,10 +209,72 @@ class RoomStore:
             self._write_atomic(self._path(room_id), to_json_bytes(dump_room_file(stored)))
             return stored
 
+    def restore_previous(self, room_id: str) -> RoomFile:
+        """Make the previous revision current again, as a new revision (so the restore itself can be undone)."""
+        with self._lock:
+            current = self.load(room_id)
+            previous = self.load_previous(room_id)
+            stored = previous.model_copy(update={"revision": current.revision + 1})
+            self._write_atomic(self._path(room_id), to_json_bytes(dump_room_file(stored)))
+            return stored
+
     def delete(self, room_id: str) -> None:
+        """Remove a room. The previous revision goes first, so a crash half-way never brings a deleted room back."""
         with self._lock:
             path = self._path(room_id)
             if not path.is_file():
                 raise RoomNotFound(room_id)
-            path.unlink()
             self._path(room_id, PREV_SUFFIX).unlink(missing_ok=True)
+            try:
+                path.unlink()
+            except FileNotFoundError as exc:
+                raise RoomNotFound(room_id) from exc
+            _fsync_dir(path.parent)
+
+    # -- start-up --------------------------------------------------------
+    def recover(self, now: float | None = None) -> list[str]:
+        """Restore rooms whose file is missing but whose previous revision exists; drop stale temporary files.
+
+        Returns the ids restored (the caller tells the user).
+        """
+        restored = []
+        with self._lock:
+            for prev in sorted(self.rooms_dir.glob(f"*{PREV_SUFFIX}")):
+                room_id = prev.name[: -len(PREV_SUFFIX)]
+                main = prev.with_name(room_id + SUFFIX)
+                if not _ID_RE.fullmatch(room_id) or main.exists():
+                    continue
+                tmp = self._temp_file(main, prev.read_bytes())  # bytes as they were: no re-encoding
+                os.replace(tmp, main)
+                restored.append(room_id)
+                log.warning("room '%s' was missing after a crash: restored from its previous revision", room_id)
+            now = time.time() if now is None else now
+            for tmp in self.rooms_dir.glob(f".*{TMP_SUFFIX}"):
+                try:
+                    if now - tmp.stat().st_mtime > ORPHAN_AGE_S:
+                        tmp.unlink()
+                except FileNotFoundError:
+                    pass
+            if restored:
+                _fsync_dir(self.rooms_dir)
+        return restored
+
+
+def _fsync_dir(folder: Path) -> None:
+    """Make renames in ``folder`` durable (POSIX; a no-op where folders cannot be opened)."""
+    try:
+        fd = os.open(folder, os.O_RDONLY | getattr(os, "O_DIRECTORY", 0))
+    except OSError:
+        return
+    try:
+        os.fsync(fd)
+    except OSError:
+        pass  # some filesystems refuse fsync on a folder; the file itself was fsynced
+    finally:
+        os.close(fd)
+
+
+def _fault_point(step: str) -> None:
+    """Tests only: die here, as a crash or a power cut would, if LEAFCAST_FAULT_AFTER_STEP names this step."""
+    if os.environ.get(FAULT_ENV) == step:
+        os.kill(os.getpid(), signal.SIGKILL)

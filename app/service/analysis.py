@@ -20,6 +20,7 @@ from app.engine.compute import compute_scene
 from app.room import layout
 from app.room.library import crops_for
 from app.room.models import CanopyZone, Crop, Fixture, Room, RoomFile
+from app.service.maintained import output_basis
 from app.service.scene_builder import build_scene
 
 UNIFORMITY_NOTE_BELOW = 0.7  # Leafcast's own prompt, no source: no horticultural pass mark is published
@@ -176,6 +177,8 @@ def analyse(
     lights = compute_scene(scene.emitters, scene.grids, scene.enclosure, scene.boxes)
     compute_ms = (time.perf_counter() - t0) * 1000
     types = {t.id: t for t in room.fixture_types}
+    basis = output_basis(room)
+    type_factor = {b["type_id"]: b["factor"] for b in basis["types"]}
     hours = _fixture_hours(room)
     emitted = sum(e.flux_umol_s for e in scene.emitters)
 
@@ -339,7 +342,7 @@ def analyse(
                 "type_id": f.type_id,
                 "type_name": t.name,
                 "on": f.on,
-                "ppf_umol_s": t.ppf_umol_s * f.dimming_pct / 100 if f.on else 0.0,
+                "ppf_umol_s": t.ppf_umol_s * f.dimming_pct / 100 * type_factor[t.id] if f.on else 0.0,
                 "power_w": watts,
                 "dimming_pct": f.dimming_pct,
                 "circuit": f.circuit,
@@ -406,6 +409,19 @@ def analyse(
                 )
             )
 
+    for b in basis["types"]:
+        if b["beyond_limit"]:
+            warnings.append(
+                _warn(
+                    "maintenance_beyond_projection",
+                    "info",
+                    f"{b['name']}: {b['age_h']:,.0f} h is beyond the {b['limit_h']:,.0f} h that its maintenance "
+                    "data may be projected to (six times the test duration, IES TM-21); output is shown as at "
+                    f"{b['limit_h']:,.0f} h and is likely lower.",
+                    "Measure the canopy with a quantum sensor and enter the readings to fit the real output.",
+                )
+            )
+
     result: dict[str, Any] = {
         "room": {
             "name": room.name,
@@ -422,6 +438,7 @@ def analyse(
         "heat": heat,
         "circuits": circuits_out,
         "emitted_umol_s": emitted,
+        "output_basis": basis,
         "regions": [r for r in (_region_stats(zl, reg) for reg in regions for zl in lights) if r],
         "warnings": warnings,
         "cautions": CAUTIONS,

@@ -1,4 +1,4 @@
-"""Server-drawn SVG for the layout sheet and exports: a dimensioned plan and zone heatmaps.
+"""Server-drawn SVG of a zone heatmap for exports (the sheet draws its own: :mod:`app.service.sheet_plan`).
 
 Drawn from the same analysis the editor shows, so sheet and editor cannot disagree.
 """
@@ -11,8 +11,7 @@ from typing import Any
 
 import numpy as np
 
-from app.room.models import Room
-from app.room.units import format_length
+from app.room.units import fmt_number
 from app.service.colours import colours_at
 
 
@@ -24,106 +23,6 @@ def viridis(t: np.ndarray) -> np.ndarray:
 def _hex(rgb) -> str:
     r, g, b = (int(round(v)) for v in rgb)
     return f"#{r:02x}{g:02x}{b:02x}"
-
-
-def plan_svg(room: Room, analysis: dict[str, Any], width_px: float = 640, fixture_rows=None) -> str:
-    """Plan to scale with zone outlines, fixtures and their ids, and dimension lines to two walls."""
-    units = room.display_units
-    margin = 56
-    scale = (width_px - 2 * margin) / room.width_m
-    height_px = room.length_m * scale + 2 * margin
-    if height_px > 760:  # long rooms: fit the height instead
-        scale = (760 - 2 * margin) / room.length_m
-        height_px = 760
-        width_px = room.width_m * scale + 2 * margin
-
-    def sx(x):
-        return margin + x * scale
-
-    def sy(y):
-        return margin + (room.length_m - y) * scale
-
-    out = [
-        f'<svg xmlns="http://www.w3.org/2000/svg" class="plan-drawing" viewBox="0 0 {width_px:.0f} {height_px:.0f}" '
-        f'width="100%" role="img" aria-label="Plan of {escape(room.name)}">'
-    ]
-    out.append(
-        f'<rect x="{sx(0):.1f}" y="{sy(room.length_m):.1f}" width="{room.width_m * scale:.1f}" '
-        f'height="{room.length_m * scale:.1f}" fill="#fff" stroke="#222" stroke-width="2.5"/>'
-    )
-    for side in room.open_sides:
-        x0, y0, x1, y1 = {
-            "front": (0, 0, room.width_m, 0),
-            "back": (0, room.length_m, room.width_m, room.length_m),
-            "left": (0, 0, 0, room.length_m),
-            "right": (room.width_m, 0, room.width_m, room.length_m),
-        }[side]
-        out.append(
-            f'<line x1="{sx(x0):.1f}" y1="{sy(y0):.1f}" x2="{sx(x1):.1f}" y2="{sy(y1):.1f}" stroke="#fff" '
-            f'stroke-width="3" stroke-dasharray="6 5"/>'
-        )
-    zones_a = {z["id"]: z for z in analysis["zones"]}
-    # Stacked tiers share a place on the plan: their labels (and their fixtures' ids) are set one under another.
-    label_row: dict[str, int] = {}
-    for i, z in enumerate(room.zones):
-        label_row[z.id] = sum(1 for o in room.zones[:i] if abs(o.x_m - z.x_m) < 1e-3 and abs(o.y_m - z.y_m) < 1e-3)
-    for z in room.zones:
-        out.append(
-            f'<rect x="{sx(z.x_m):.1f}" y="{sy(z.y_m + z.length_m):.1f}" width="{z.width_m * scale:.1f}" '
-            f'height="{z.length_m * scale:.1f}" fill="rgba(76,153,92,0.12)" stroke="#4c995c"/>'
-        )
-        a = zones_a.get(z.id)
-        label = f"{z.name}: {a['crop_name'] if a else z.crop_id}, canopy {format_length(z.canopy_height_m, units)}"
-        out.append(
-            f'<text x="{sx(z.x_m) + 3:.1f}" y="{sy(z.y_m + z.length_m) + 11 + 10 * label_row[z.id]:.1f}" '
-            f'font-size="9" fill="#2f5a39">'
-            f"{escape(label)}</text>"
-        )
-    for o in room.obstacles:
-        out.append(
-            f'<rect x="{sx(o.x_m):.1f}" y="{sy(o.y_m + o.length_m):.1f}" width="{o.width_m * scale:.1f}" '
-            f'height="{o.length_m * scale:.1f}" fill="none" stroke="#786e64" stroke-dasharray="3 3"/>'
-        )
-    types = {t.id: t for t in room.fixture_types}
-    seen_at: dict[tuple[float, float], int] = {}
-    for f in room.fixtures:
-        g = types[f.type_id].geometry
-        stack = seen_at.get((round(f.x_m, 3), round(f.y_m, 3)), 0)
-        seen_at[(round(f.x_m, 3), round(f.y_m, 3))] = stack + 1
-        L, W = max(g.length_m * scale, 6), max((g.width_m if g.kind != "bar" else g.bar_width_m) * scale, 4)
-        cx, cy = sx(f.x_m), sy(f.y_m)
-        fill = "#f6d365" if f.on else "#ddd"
-        if g.kind == "point":
-            out.append(f'<circle cx="{cx:.1f}" cy="{cy:.1f}" r="6" fill="{fill}" stroke="#7a5d00"/>')
-        else:
-            out.append(
-                f'<rect x="{-L / 2:.1f}" y="{-W / 2:.1f}" width="{L:.1f}" height="{W:.1f}" fill="{fill}" '
-                f'fill-opacity="0.8" stroke="#7a5d00" transform="translate({cx:.1f},{cy:.1f}) rotate({-f.rotation_deg:g})"/>'
-            )
-        out.append(
-            f'<text x="{cx:.1f}" y="{cy + 4 + 12 * stack:.1f}" font-size="11" font-weight="700" text-anchor="middle" '
-            f'class="fixture-id">{escape(f.id)}</text>'
-        )
-        # Dimension lines from the left and the front walls to the fixture centre.
-        out.append(
-            f'<line x1="{sx(0):.1f}" y1="{cy:.1f}" x2="{cx:.1f}" y2="{cy:.1f}" stroke="#2b59c3" stroke-width="0.7" '
-            f'stroke-dasharray="2 2"/>'
-        )
-        out.append(
-            f'<line x1="{cx:.1f}" y1="{sy(0):.1f}" x2="{cx:.1f}" y2="{cy:.1f}" stroke="#2b59c3" stroke-width="0.7" '
-            f'stroke-dasharray="2 2"/>'
-        )
-    out.append(
-        f'<text x="{sx(room.width_m / 2):.1f}" y="{sy(0) + 28:.1f}" text-anchor="middle" font-size="11">front wall · '
-        f"width {escape(format_length(room.width_m, units))}</text>"
-    )
-    out.append(
-        f'<text x="{sx(0) - 30:.1f}" y="{sy(room.length_m / 2):.1f}" text-anchor="middle" font-size="11" '
-        f'transform="rotate(-90 {sx(0) - 30:.1f} {sy(room.length_m / 2):.1f})">left wall · length '
-        f"{escape(format_length(room.length_m, units))}</text>"
-    )
-    out.append("</svg>")
-    return "".join(out)
 
 
 def heatmap_svg(
@@ -173,16 +72,17 @@ def heatmap_svg(
                 f'y2="{h_px - (sy1 - y0) * scale:.1f}" stroke="{colour}" stroke-width="1.5" stroke-dasharray="{dash}"/>'
             )
     out.append(f'<rect x="0" y="0" width="{width_px:.1f}" height="{h_px:.1f}" fill="none" stroke="#222"/>')
-    for k in range(11):
-        t = k / 10
+    # The colour bar: ten slots, slot k drawn in the colour at its middle; the ends are labelled with the
+    # map's minimum and maximum, at the bar's bottom and top edges, inside the drawing.
+    slots = 10
+    for k in range(slots):
         out.append(
-            f'<rect x="{width_px + 8:.1f}" y="{h_px * (1 - t) - h_px / 10:.1f}" width="12" height="{h_px / 10 + 0.5:.1f}" '
-            f'fill="{_hex(viridis(np.array(t)))}"/>'
+            f'<rect x="{width_px + 8:.1f}" y="{h_px * (1 - (k + 1) / slots):.2f}" width="12" height="{h_px / slots + 0.3:.2f}" '
+            f'fill="{_hex(viridis(np.array((k + 0.5) / slots)))}"/>'
         )
-    for t in (0.0, 0.5, 1.0):
+    for t, dy in ((0.0, 0.0), (0.5, 3.0), (1.0, 9.0)):
         out.append(
-            f'<text x="{width_px + 24:.1f}" y="{h_px * (1 - t) + 4 - (8 if t == 1 else 0) + (0 if t else -4):.1f}" '
-            f'font-size="9">{vmin + t * span:.0f}</text>'
+            f'<text x="{width_px + 24:.1f}" y="{h_px * (1 - t) + dy:.1f}" font-size="9">{fmt_number(vmin + t * span, 0)}</text>'
         )
     out.append("</svg>")
     return "".join(out)

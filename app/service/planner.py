@@ -21,6 +21,7 @@ the band (Leafcast's own definition; no published pass mark exists).
 
 from __future__ import annotations
 
+import logging
 import math
 import threading
 import time
@@ -36,6 +37,8 @@ from app.room.library import crops_for, fixture_library
 from app.room.models import CanopyZone, Fixture, FixtureType, Room, RoomFile
 from app.room.roomfile import consistency_problems, fixture_half_extent_m
 from app.service.analysis import analyse, zone_photoperiod_h
+from app.service.jobs_pool import BoundedExecutor
+from app.service.maintained import factor_for
 from app.service.scene_builder import build_scene, emitter_for, room_boxes, zone_grid
 
 DARK_ALLOWANCE = 0.10  # share of a zone allowed below the band (Leafcast default, no source)
@@ -199,6 +202,7 @@ def _zone_search(
                     for edge in (False, True):
                         for stagger in (False, True) if rows > 1 and cols > 1 else (False,):
                             combos.append((t, rot, rows, cols, edge, stagger, hx, hy))
+    kept = {t.id: factor_for(room, t) for t in types}  # output at the age the room's figures are shown
     rng = np.random.default_rng(opts.seed)
     order = rng.permutation(len(combos))  # the seed only orders the search; the ranking is total
     total = len(combos) * len(heights)
@@ -215,7 +219,7 @@ def _zone_search(
             done += 1
             if not _fits(room, zone, t, rot, pos, h):
                 continue
-            emitters = tuple(emitter_for(f"p{k}", t, x, y, h, rot, 100.0) for k, (x, y) in enumerate(pos))
+            emitters = tuple(emitter_for(f"p{k}", t, x, y, h, rot, 100.0, kept[t.id]) for k, (x, y) in enumerate(pos))
             ppfd = compute_scene(emitters, (grid,), enclosure, scene.boxes)[0].ppfd.astype(float)
             p_dark = value_at_area_share(ppfd, area, DARK_ALLOWANCE)
             stats = area_weighted_stats(ppfd, area)
@@ -577,7 +581,16 @@ def curves(rf: RoomFile, zone_id: str, fixture_ids: tuple[str, ...] = (), steps:
     for h in heights:
         dz = h - lowest
         em = tuple(
-            emitter_for(f.id, types[f.type_id], f.x_m, f.y_m, f.hanging_height_m + dz, f.rotation_deg, f.dimming_pct)
+            emitter_for(
+                f.id,
+                types[f.type_id],
+                f.x_m,
+                f.y_m,
+                f.hanging_height_m + dz,
+                f.rotation_deg,
+                f.dimming_pct,
+                factor_for(room, types[f.type_id]),
+            )
             for f in chosen
             if f.on
         )
@@ -624,11 +637,13 @@ class Job:
     result: dict[str, Any] | None = None
     cancel: threading.Event = field(default_factory=threading.Event)
     started: float = field(default_factory=time.time)
+    position: Any = None  # () -> place in the executor's queue (0 = running), set by the JobBoard
 
     def public(self) -> dict[str, Any]:
         return {
             "id": self.id,
             "room_id": self.room_id,
+            "queue_position": self.position() if self.position and not self.done else None,
             "progress": self.progress,
             "zone": self.zone,
             "found": self.found,
@@ -640,12 +655,14 @@ class Job:
 
 
 class JobBoard:
-    """Planner runs in background threads; at most a few jobs are kept."""
+    """Planner runs on a bounded executor (one at a time, the rest queued); at most a few jobs are kept."""
 
-    def __init__(self, keep: int = 16) -> None:
+    def __init__(self, keep: int = 16, workers: int = 1) -> None:
         self.jobs: dict[str, Job] = {}
         self.keep = keep
         self.lock = threading.Lock()
+        self.pool = BoundedExecutor(workers=workers, max_queued=keep, name="plan")
+        self.check_pool = BoundedExecutor(workers=workers, max_queued=keep, name="check")
 
     def start(self, room_id: str, rf: RoomFile, opts: PlanOptions) -> Job:
         job = Job(uuid.uuid4().hex[:12], room_id)
@@ -661,16 +678,20 @@ class JobBoard:
 
         def run():
             try:
+                if job.cancel.is_set():
+                    raise Cancelled
                 job.result = plan(rf, opts, progress, job.cancel)
             except Cancelled:
                 job.cancelled = True
-            except Exception as exc:  # reported to the page, never a traceback
+            except Exception as exc:  # reported to the page, never a traceback; logged with it
+                logging.getLogger("leafcast.planner").exception("planner job %s failed", job.id)
                 job.error = f"the planner stopped: {exc}"
             finally:
                 job.done = True
                 job.progress = 1.0 if not job.cancelled else job.progress
 
-        threading.Thread(target=run, daemon=True, name=f"plan-{job.id}").start()
+        job.position = lambda: self.pool.position(job.id)
+        self.pool.submit(job.id, run)
         return job
 
     def get(self, job_id: str) -> Job | None:

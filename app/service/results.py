@@ -157,6 +157,29 @@ class RoomHeader(Result):
     height_m: float
 
 
+class TypeOutputBasis(Result):
+    """One fixture type's share of its rated output at the shown age (IES TM-21 exponential × dirt factor)."""
+
+    type_id: str
+    name: str
+    age_h: float | None = Field(description="Hours at which the output is shown; None at installation")
+    maintenance: float = Field(description="Share of initial output by the maintenance projection, 0-1")
+    dirt_factor: float
+    factor: float = Field(description="maintenance × dirt factor: the flux used for every figure")
+    source: str = Field(description="Where the maintenance comes from, in words")
+    beyond_limit: bool = Field(description="The age is beyond six times the test duration (IES TM-21)")
+    limit_h: float | None = Field(description="Projection limit [h]; None when no test duration is known")
+    l70_h: float | None = Field(description="Reported L70 [h]: the projection limit when capped")
+    l70_capped: bool
+
+
+class OutputBasis(Result):
+    shown_at: str = Field(description="recorded_age, installation or chosen_age")
+    age_h: float | None
+    words: str
+    types: list[TypeOutputBasis]
+
+
 class Analysis(Result):
     """The whole analysis of a room, as every page, the API and the CLI show it."""
 
@@ -176,3 +199,4 @@ class Analysis(Result):
     compute_ms: float = Field(description="Engine time [ms]")
     elapsed_ms: float = Field(description="Whole analysis, engine included [ms]")
     budget: Budget | None = None
+    output_basis: OutputBasis | None = Field(default=None, description="At which age the output is shown")

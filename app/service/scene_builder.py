@@ -10,6 +10,7 @@ from app.engine import distributions as dist
 from app.engine.cache import MIB, BoundedCache
 from app.engine.scene import Box, Emitter, Enclosure, Grid
 from app.room.models import Beam, CanopyZone, FixtureType, Room
+from app.service.maintained import output_factors
 
 
 @dataclass(frozen=True)
@@ -38,7 +39,14 @@ def distribution_for(beam: Beam) -> dist.Distribution:
 
 
 def emitter_for(
-    fixture_id: str, t: FixtureType, x_m: float, y_m: float, z_m: float, rotation_deg: float, dimming_pct: float
+    fixture_id: str,
+    t: FixtureType,
+    x_m: float,
+    y_m: float,
+    z_m: float,
+    rotation_deg: float,
+    dimming_pct: float,
+    output_factor: float = 1.0,
 ) -> Emitter:
     g = t.geometry
     return Emitter(
@@ -46,7 +54,7 @@ def emitter_for(
         x_m=x_m,
         y_m=y_m,
         z_m=z_m,
-        flux_umol_s=t.ppf_umol_s * dimming_pct / 100.0,
+        flux_umol_s=t.ppf_umol_s * dimming_pct / 100.0 * output_factor,
         distribution=distribution_for(t.beam),
         shape=g.kind,
         length_m=g.length_m,
@@ -67,10 +75,24 @@ def room_boxes(room: Room) -> tuple[Box, ...]:
     )
 
 
-def build_scene(room: Room) -> EngineScene:
+def build_scene(room: Room, dimming_pct: float | None = None) -> EngineScene:
+    """The engine's scene, each fixture at its type's output at the shown age (:mod:`app.service.maintained`).
+
+    dimming_pct : every fixture at this dimming instead of its own (the dimming when readings were taken).
+    """
     types = {t.id: t for t in room.fixture_types}
+    factors = output_factors(room)
     emitters = tuple(
-        emitter_for(f.id, types[f.type_id], f.x_m, f.y_m, f.hanging_height_m, f.rotation_deg, f.dimming_pct)
+        emitter_for(
+            f.id,
+            types[f.type_id],
+            f.x_m,
+            f.y_m,
+            f.hanging_height_m,
+            f.rotation_deg,
+            f.dimming_pct if dimming_pct is None else dimming_pct,
+            factors[f.type_id],
+        )
         for f in room.fixtures
         if f.on
     )

@@ -20,18 +20,34 @@ from app.room.models import RoomFile
 from app.room.roomfile import RoomFileError, parse_room_file
 from app.room.storage import RoomStore
 from app.room.units import format_area, format_length
+from app.service.guarded import AnalysisRunner
 from app.service.planner import JobBoard
 from app.settings import Settings
 from app.web.errors import install_error_handlers
+from app.web.guards import CrossSiteGuard, SecurityHeaders
 from app.web.middleware import BodyLimit, LocalOnly
-from app.web.routes import analysis, fixture_types, footprints, library, pages, photometry, planner, rooms
+from app.web.routes import (
+    analysis,
+    docs,
+    fixture_types,
+    footprints,
+    library,
+    meter,
+    pages,
+    photometry,
+    planner,
+    rooms,
+    sheet,
+    year,
+)
 
-ROUTERS = (pages, rooms, analysis, planner, photometry, library, footprints, fixture_types)
+ROUTERS = (pages, rooms, analysis, planner, photometry, library, meter, year, sheet, docs, footprints, fixture_types)
 
 
 def create_app(settings: Settings | None = None) -> FastAPI:
     settings = settings or Settings()
     store = RoomStore(settings.data_dir)
+    restored = store.recover()  # rooms a crash left without their file come back from their previous revision
     if settings.seed_samples and settings.samples_dir and not store.list():
         seed_samples(store, settings.samples_dir)
 
@@ -39,11 +55,17 @@ def create_app(settings: Settings | None = None) -> FastAPI:
         title="Leafcast",
         version=__version__,
         description="Lay out grow-room lighting: canopy PPFD and DLI maps, coverage, energy and circuits.",
+        docs_url=None,  # served by app.web.routes.docs from installed files (offline, no inline script)
+        redoc_url=None,
     )
     app.state.settings, app.state.store, app.state.jobs = settings, store, JobBoard()
+    app.state.restored = restored
+    app.state.runner = AnalysisRunner(budget_s=settings.max_analysis_s, workers=settings.analysis_workers)
     app.state.templates = _templates()
     app.add_middleware(BodyLimit)
+    app.add_middleware(CrossSiteGuard)
     app.add_middleware(LocalOnly, allowed_hosts=settings.allowed_hosts)
+    app.add_middleware(SecurityHeaders)  # outermost: every answer carries the headers, refusals included
     app.mount("/static", StaticFiles(directory=str(asset_dir("static"))), name="static")
     install_error_handlers(app)
     for module in ROUTERS:

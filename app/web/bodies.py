@@ -6,6 +6,7 @@ from typing import Annotated
 
 from fastapi import Request
 from pydantic import BaseModel, ConfigDict, Field
+from starlette.concurrency import run_in_threadpool
 
 from app.room.models import RoomFile
 from app.room.roomfile import RoomFileError, parse_room_file
@@ -61,10 +62,18 @@ class PlanIn(ApiIn):
     seed: int = Field(default=0, ge=0, le=2**31)
 
 
-async def room_from_body(request: Request) -> RoomFile:
-    """Parse a posted room file with the room file's own validation (field paths, limits)."""
-    raw = await request.body()
+def parse_room_body(raw: bytes) -> RoomFile:
     try:
         return parse_room_file(raw)
     except RoomFileError as exc:
         raise room_error(exc) from exc
+
+
+async def room_from_body(request: Request) -> RoomFile:
+    """Parse a posted room file with the room file's own validation (field paths, limits).
+
+    The body is received asynchronously; parsing (up to 8 MB of JSON and its validation) runs in the thread
+    pool, so the event loop keeps answering other requests meanwhile.
+    """
+    raw = await request.body()
+    return await run_in_threadpool(parse_room_body, raw)

@@ -13,6 +13,8 @@ from app.room.models import RoomFile
 from app.room.roomfile import RoomFileError
 from app.room.storage import RoomNotFound, RoomStore
 from app.service.analysis import analyse
+from app.service.cost import OverBudget
+from app.service.guarded import AnalysisMemory, AnalysisRunner, AnalysisTimeout
 from app.web.errors import ApiError, not_found, room_error
 
 
@@ -28,16 +30,40 @@ def load_room(store: RoomStore, room_id: str) -> RoomFile:
     try:
         return store.load(room_id)
     except RoomNotFound as exc:
-        raise not_found(f"no room with id '{room_id}'") from exc
+        raise not_found(f"no room with id '{room_id[:80]}'") from exc
     except RoomFileError as exc:
         raise room_error(exc) from exc
 
 
-def analysed(room_file: RoomFile, **kw) -> dict[str, Any]:
+def runner_of(request: Request) -> AnalysisRunner | None:
+    return getattr(request.app.state, "runner", None)
+
+
+def within_budget(request: Request, room_file: RoomFile) -> None:
+    """Refuse up front (422) a room whose analysis would be over the budget (planner, check-my-setup)."""
+    runner = runner_of(request)
+    if runner is not None:
+        try:
+            runner.estimate(room_file)
+        except OverBudget as exc:
+            raise over_budget(exc) from exc
+
+
+def over_budget(exc: OverBudget) -> ApiError:
+    return ApiError(422, "too_much_work", str(exc), estimate=exc.estimate.as_dict())
+
+
+def analysed(room_file: RoomFile, *, request: Request | None = None, **kw) -> dict[str, Any]:
+    """The analysis, estimated and bounded by the app's runner when there is a request (else computed here)."""
+    runner = runner_of(request) if request is not None else None
     try:
-        return analyse(room_file, **kw)
+        return runner.run(room_file, **kw) if runner is not None else analyse(room_file, **kw)
     except SceneError as exc:
         raise ApiError(422, "bad_geometry", str(exc)) from exc
+    except OverBudget as exc:
+        raise over_budget(exc) from exc
+    except (AnalysisTimeout, AnalysisMemory) as exc:
+        raise ApiError(503, "analysis_stopped", f"Not computed: {exc}") from exc
 
 
 def render(request: Request, template: str, data: dict[str, Any], fmt: str | None):

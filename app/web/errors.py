@@ -9,6 +9,7 @@ from pydantic import BaseModel, Field
 from starlette.exceptions import HTTPException as StarletteHTTPException
 
 from app.room.roomfile import Problem, RoomFileError
+from app.room.storage import StorageFull
 
 
 class ProblemOut(BaseModel):
@@ -21,6 +22,7 @@ class ErrorOut(BaseModel):
     message: str
     problems: list[ProblemOut] = []
     current_revision: int | None = None
+    estimate: dict | None = Field(default=None, description="The cost model's estimate, when it refused")
 
 
 ERRORS = {code: {"model": ErrorOut} for code in (400, 403, 404, 409, 413, 415, 421, 422, 503, 507)}
@@ -34,15 +36,21 @@ class ApiError(Exception):
         message: str,
         problems: list[Problem] | None = None,
         current_revision: int | None = None,
+        estimate: dict | None = None,
     ) -> None:
         self.status, self.error, self.message = status, error, message
         self.problems, self.current_revision = problems or [], current_revision
+        self.estimate = estimate
 
 
-def error_json(status: int, error: str, message: str, problems=(), current_revision=None) -> JSONResponse:
+def error_json(
+    status: int, error: str, message: str, problems=(), current_revision=None, estimate=None
+) -> JSONResponse:
     body = {"error": error, "message": message, "problems": [p.as_dict() for p in problems]}
     if current_revision is not None:
         body["current_revision"] = current_revision
+    if estimate is not None:
+        body["estimate"] = estimate
     return JSONResponse(body, status_code=status)
 
 
@@ -62,12 +70,21 @@ def not_found(what: str) -> ApiError:
 def install_error_handlers(app: FastAPI) -> None:
     @app.exception_handler(ApiError)
     async def _api_error(request: Request, exc: ApiError):
-        return error_json(exc.status, exc.error, exc.message, exc.problems, exc.current_revision)
+        return error_json(exc.status, exc.error, exc.message, exc.problems, exc.current_revision, exc.estimate)
 
     @app.exception_handler(RequestValidationError)
     async def _validation(request: Request, exc: RequestValidationError):
         problems = [Problem(".".join(str(p) for p in e["loc"]), e["msg"]) for e in exc.errors()]
         return error_json(422, "invalid_request", problems[0].message if problems else "invalid request", problems)
+
+    @app.exception_handler(StorageFull)
+    async def _disk_full(request: Request, exc: StorageFull):
+        return error_json(
+            507,
+            "storage_full",
+            "The disk that holds your rooms is full, so nothing was saved; the room is still at its last saved "
+            "revision. Free some space and save again.",
+        )
 
     @app.exception_handler(StarletteHTTPException)
     async def _http(request: Request, exc: StarletteHTTPException):

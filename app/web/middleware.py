@@ -1,10 +1,11 @@
-"""Two guards for a local app: only local Host headers, and bounded request bodies."""
+"""Two guards for a local app: only local Host headers, and bounded, sane request bodies."""
 
 from __future__ import annotations
 
 import json
 
 from app.room import limits
+from app.room.roomfile import json_shape_problem
 
 
 def _json_response(status: int, error: str, message: str):
@@ -47,45 +48,53 @@ class LocalOnly:
 
 
 class BodyLimit:
-    """Refuse bodies over the limit, by Content-Length or while streaming."""
+    """Refuse bodies over the limit (413) on every route, by Content-Length or while a chunked body streams, and
+    JSON too deeply nested or with absurdly long numbers (422) before any parser sees it.
+
+    The body is received here in full (at most the limit) and handed on unchanged, so every route, whatever
+    parses its body, gets the same refusals with the same wording.
+    """
 
     def __init__(self, app, max_bytes: int = limits.MAX_BODY_BYTES) -> None:
         self.app, self.max = app, max_bytes
 
     async def __call__(self, scope, receive, send):
-        if scope["type"] != "http":
+        if scope["type"] != "http" or scope["method"] in ("GET", "HEAD", "OPTIONS"):
             return await self.app(scope, receive, send)
         msg = f"request body is larger than the {self.max:,}-byte limit"
-        length = dict(scope["headers"]).get(b"content-length")
+        headers = dict(scope["headers"])
+        length = headers.get(b"content-length")
         if length is not None and length.isdigit() and int(length) > self.max:
-            for m in _json_response(413, "too_large", msg):
-                await send(m)
-            return
-        seen = 0
-        started = False
-
-        async def counted_receive():
-            nonlocal seen
+            return await _refuse(send, 413, "too_large", msg)
+        chunks, seen, more = [], 0, True
+        while more:
             message = await receive()
-            if message["type"] == "http.request":
-                seen += len(message.get("body", b""))
-                if seen > self.max:
-                    raise _TooLarge
-            return message
+            if message["type"] == "http.disconnect":
+                return  # the client went away: nothing to answer
+            body = message.get("body", b"")
+            seen += len(body)
+            if seen > self.max:
+                return await _refuse(send, 413, "too_large", msg)
+            chunks.append(body)
+            more = message.get("more_body", False)
+        body = b"".join(chunks)
+        ctype = headers.get(b"content-type", b"").split(b";")[0].strip().lower()
+        if body and ctype == b"application/json":
+            problem = json_shape_problem(body.decode("utf-8", errors="replace"))
+            if problem:
+                return await _refuse(send, 422, "invalid_request", f"(body): {problem}")
+        replayed = False
 
-        async def tracking_send(message):
-            nonlocal started
-            if message["type"] == "http.response.start":
-                started = True
-            await send(message)
+        async def replay():
+            nonlocal replayed
+            if not replayed:
+                replayed = True
+                return {"type": "http.request", "body": body, "more_body": False}
+            return await receive()
 
-        try:
-            await self.app(scope, counted_receive, tracking_send)
-        except _TooLarge:
-            if not started:
-                for m in _json_response(413, "too_large", msg):
-                    await send(m)
+        await self.app(scope, replay, send)
 
 
-class _TooLarge(Exception):
-    pass
+async def _refuse(send, status: int, error: str, message: str) -> None:
+    for m in _json_response(status, error, message):
+        await send(m)

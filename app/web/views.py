@@ -6,13 +6,14 @@ import datetime as dt
 from typing import Any
 
 from app import __version__
-from app.room.layout import zone_lit_by
 from app.room.library import crop_library, crops_for, fixture_library
 from app.room.models import WALL_FINISHES, RoomFile
 from app.room.roomfile import dump_room_file
 from app.room.storage import RoomStore
+from app.room.units import format_length
+from app.service import sheet_data
 from app.service.colours import colour_scale
-from app.service.drawings import heatmap_svg, plan_svg
+from app.service.meter import sheet_summary as meter_sheet_summary
 
 
 def room_list(store: RoomStore) -> dict[str, Any]:
@@ -45,69 +46,40 @@ def editor(room_id: str, room_file: RoomFile, analysis: dict[str, Any]) -> dict[
 
 def sheet(room_id: str, room_file: RoomFile, analysis: dict[str, Any], paper: str) -> dict[str, Any]:
     room = room_file.room
-    zones = {z.id: z for z in room.zones}
-    fixtures = []
-    types = {t.id: t for t in room.fixture_types}
-    for f in room.fixtures:
-        top = zone_lit_by(room.zones, f)
-        fixtures.append(
-            {
-                "id": f.id,
-                "type_name": types[f.type_id].name,
-                "x_m": f.x_m,
-                "y_m": f.y_m,
-                "from_left_m": f.x_m,
-                "from_front_m": f.y_m,
-                "rotation_deg": f.rotation_deg,
-                "hanging_height_m": f.hanging_height_m,
-                "above_canopy_m": f.hanging_height_m - top.canopy_height_m if top else None,
-                "zone_id": top.id if top else None,
-                "dimming_pct": f.dimming_pct,
-                "circuit": f.circuit,
-                "on": f.on,
-            }
-        )
-    schedule: dict[str, dict[str, Any]] = {}
-    for f in room.fixtures:
-        t = types[f.type_id]
-        row = schedule.setdefault(
-            t.id,
-            {
-                "type_name": t.name,
-                "count": 0,
-                "ppf_umol_s": t.ppf_umol_s,
-                "power_w": t.power_w,
-                "weight_kg": t.weight_kg,
-                "dimming": set(),
-                "circuits": set(),
-                "ids": [],
-            },
-        )
-        row["count"] += 1
-        row["dimming"].add(f"{f.dimming_pct:g} %")
-        row["circuits"].add(f.circuit)
-        row["ids"].append(f.id)
-    bom = [
-        {**r, "dimming": ", ".join(sorted(r["dimming"])), "circuits": ", ".join(sorted(r["circuits"]))}
-        for r in schedule.values()
-    ]
+    u = room.display_units
+    layout, tier_list = sheet_data.tier_sections(room, analysis)
     return {
         "title": f"Layout sheet: {room.name}",
         "room_id": room_id,
         "paper": "a4" if paper.lower() == "a4" else "letter",
         "date": dt.date.today().isoformat(),
         "revision": room_file.revision,
-        "units": room.display_units,
+        "units": u,
         "version": __version__,
-        "room_file": dump_room_file(room_file),
-        "fixtures": fixtures,
-        "bill_of_materials": bom,
-        "zones_by_id": {k: {"name": v.name} for k, v in zones.items()},
-        "analysis": analysis,
-        "drawings": {
-            "plan": plan_svg(room, analysis),
-            "heatmaps": {z["id"]: heatmap_svg(z, room.display_units) for z in analysis["zones"]},
+        "room": {
+            "name": room.name,
+            "size": f"{format_length(room.width_m, u)} × {format_length(room.length_m, u)}, ceiling "
+            f"{format_length(room.height_m, u)}",
+            "walls": f"{room.wall_finish.label or room.wall_finish.kind} ({room.wall_finish.kind}, "
+            f"{room.wall_finish.reflectance:g})" + (f"; open: {', '.join(room.open_sides)}" if room.open_sides else ""),
+            "entry": f"{room.entry.label}, {room.entry.side} wall",
+            "voltage": f"{room.schedule.supply_voltage_v:g} V",
         },
+        "definitions": sheet_data.DEFINITIONS,
+        "tier_layout": layout,
+        "tiers": tier_list,
+        "colour_scale": sheet_data.colour_legend(analysis),
+        "fixtures": sheet_data.fixtures_to_hang(room),
+        "bill_of_materials": sheet_data.bill_of_materials(room),
+        "circuits": sheet_data.circuit_loads(room, analysis),
+        "zones": sheet_data.zone_rows(room, analysis),
+        "energy": sheet_data.energy_rows(analysis),
+        "warnings": sheet_data.sheet_warnings(analysis, u),
+        "cautions": analysis["cautions"],
+        "dxf_url": f"/api/rooms/{room_id}/plan.dxf",
+        "output_basis": analysis.get("output_basis"),
+        "meter": meter_sheet_summary(room_file),
+        "zones_by_id": {z.id: {"name": z.name} for z in room.zones},
     }
 
 

@@ -28,7 +28,7 @@ router = APIRouter(tags=["analysis"])
     summary="PPFD/DLI maps, coverage, energy, circuits and warnings",
 )
 def room_analysis(request: Request, room_id: str, budget: bool = False, grids: bool = True):
-    return analysed(load_room(store_of(request), room_id), with_budget=budget, include_grids=grids)
+    return analysed(load_room(store_of(request), room_id), request=request, with_budget=budget, include_grids=grids)
 
 
 @router.post(
@@ -47,7 +47,7 @@ async def analyze_posted(
     rf = await room_from_body(request)
     regions = parse_regions(region)
     # CPU-bound: off the event loop, so other requests keep answering.
-    return await run_in_threadpool(analysed, rf, with_budget=budget, regions=regions)
+    return await run_in_threadpool(analysed, rf, request=request, with_budget=budget, regions=regions)
 
 
 def _zone_of(result: dict[str, Any], room_id: str, zone_id: str) -> dict[str, Any]:
@@ -63,7 +63,7 @@ def _zone_of(result: dict[str, Any], room_id: str, zone_id: str) -> dict[str, An
     summary="A zone's PPFD and DLI grid as CSV",
 )
 def zone_csv(request: Request, room_id: str, zone_id: str):
-    zone = _zone_of(analysed(load_room(store_of(request), room_id)), room_id, zone_id)
+    zone = _zone_of(analysed(load_room(store_of(request), room_id), request=request), room_id, zone_id)
     return Response(
         grid_csv(zone),
         media_type="text/csv",
@@ -78,7 +78,7 @@ def zone_csv(request: Request, room_id: str, zone_id: str):
 )
 def zone_svg(request: Request, room_id: str, zone_id: str, quantity: str = Query("ppfd", pattern="^(ppfd|dli)$")):
     rf = load_room(store_of(request), room_id)
-    zone = _zone_of(analysed(rf), room_id, zone_id)
+    zone = _zone_of(analysed(rf, request=request), room_id, zone_id)
     return Response(
         heatmap_svg(zone, rf.room.display_units, quantity),
         media_type="image/svg+xml",

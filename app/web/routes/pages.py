@@ -21,13 +21,13 @@ def room_list_page(request: Request, format: str | None = None):
 @router.get("/rooms/{room_id}", response_class=HTMLResponse)
 def editor_page(request: Request, room_id: str, format: str | None = None):
     rf = load_room(store_of(request), room_id)
-    return render(request, "editor.html", views.editor(room_id, rf, analysed(rf)), format)
+    return render(request, "editor.html", views.editor(room_id, rf, analysed(rf, request=request)), format)
 
 
 @router.get("/rooms/{room_id}/sheet", response_class=HTMLResponse)
 def sheet_page(request: Request, room_id: str, format: str | None = None, paper: str = "letter"):
     rf = load_room(store_of(request), room_id)
-    return render(request, "sheet.html", views.sheet(room_id, rf, analysed(rf), paper), format)
+    return render(request, "sheet.html", views.sheet(room_id, rf, analysed(rf, request=request), paper), format)
 
 
 @router.get("/rooms/{room_id}/plan", response_class=HTMLResponse)

@@ -22,7 +22,12 @@ router = APIRouter(prefix="/api/photometry", tags=["photometry"])
 @router.post(
     "/import",
     responses=ERRORS,
-    openapi_extra={"requestBody": {"required": True, "content": {"text/plain": {"schema": {"type": "string"}}}}},
+    openapi_extra={
+        "requestBody": {
+            "required": True,
+            "content": {"application/octet-stream": {"schema": {"type": "string", "format": "binary"}}},
+        }
+    },
     summary="Turn an IES LM-63 or EULUMDAT file into a fixture type",
 )
 async def import_photometry(

@@ -2,16 +2,19 @@
 
 from __future__ import annotations
 
+from concurrent.futures import TimeoutError as FutureTimeout
 from typing import Any
 
 from fastapi import APIRouter, Query, Request
 
+from app.service.jobs_pool import QueueFull
 from app.service.planner import JobBoard, PlanOptions, check_setup, curves
 from app.web.bodies import PlanIn
-from app.web.deps import load_room, store_of
+from app.web.deps import load_room, store_of, within_budget
 from app.web.errors import ERRORS, ApiError, not_found
 
 router = APIRouter(tags=["planner"])
+CHECK_BUDGET_FACTOR = 3  # check-my-setup analyses the room several times: a few analyses' worth of time
 
 
 def jobs_of(request: Request) -> JobBoard:
@@ -33,6 +36,7 @@ def _job_or_404(request: Request, job_id: str):
 )
 def start_plan(request: Request, room_id: str, body: PlanIn) -> dict[str, Any]:
     rf = load_room(store_of(request), room_id)
+    within_budget(request, rf)
     opts = PlanOptions(
         type_ids=tuple(body.type_ids),
         objective=body.objective,
@@ -40,8 +44,11 @@ def start_plan(request: Request, room_id: str, body: PlanIn) -> dict[str, Any]:
         min_clearance_m=body.min_clearance_m,
         seed=body.seed,
     )
-    job = jobs_of(request).start(room_id, rf, opts)
-    return {"job_id": job.id, "revision": rf.revision}
+    try:
+        job = jobs_of(request).start(room_id, rf, opts)
+    except QueueFull as exc:
+        raise ApiError(503, "busy", f"The planner is busy: {exc}.") from exc
+    return {"job_id": job.id, "revision": rf.revision, "queue_position": job.public()["queue_position"]}
 
 
 @router.get("/api/plan-jobs/{job_id}", responses=ERRORS, summary="Progress and best layouts so far")
@@ -62,7 +69,22 @@ def cancel_job(request: Request, job_id: str) -> dict[str, Any]:
     summary="Does the room meet each zone's target? If not, the smallest changes that do",
 )
 def check_room(request: Request, room_id: str) -> dict[str, Any]:
-    return check_setup(load_room(store_of(request), room_id))
+    rf = load_room(store_of(request), room_id)
+    within_budget(request, rf)
+    budget_s = request.app.state.settings.max_analysis_s
+    try:
+        task = jobs_of(request).check_pool.submit(f"check-{room_id}-{id(rf)}", lambda: check_setup(rf))
+    except QueueFull as exc:
+        raise ApiError(503, "busy", f"Check-my-setup is busy: {exc}.") from exc
+    try:
+        return task.result(timeout=CHECK_BUDGET_FACTOR * budget_s)
+    except FutureTimeout as exc:
+        raise ApiError(
+            503,
+            "too_slow",
+            f"Check-my-setup did not finish within {CHECK_BUDGET_FACTOR * budget_s:g} s; try a coarser map "
+            "spacing or fewer fixtures, or run `leafcast report` on the file.",
+        ) from exc
 
 
 @router.get(
@@ -76,7 +98,9 @@ def room_curves(
     zone: str = Query(..., max_length=40),
     fixture: list[str] = Query(default=[], max_length=200),
 ) -> dict[str, Any]:
+    rf = load_room(store_of(request), room_id)
+    within_budget(request, rf)
     try:
-        return curves(load_room(store_of(request), room_id), zone, tuple(fixture))
+        return curves(rf, zone, tuple(fixture))
     except (ValueError, StopIteration) as exc:
         raise ApiError(422, "invalid_request", str(exc) or f"no zone '{zone}'") from exc

@@ -7,6 +7,7 @@ from typing import Any
 from fastapi import APIRouter, Request
 from fastapi.responses import Response
 from pydantic import BaseModel
+from starlette.concurrency import run_in_threadpool
 
 from app.room.roomfile import dump_room_file, to_json_bytes
 from app.room.storage import RoomNotFound, StaleRevision
@@ -46,7 +47,7 @@ def list_rooms(request: Request):
 )
 async def create_room(request: Request):
     rf = await room_from_body(request)
-    room_id, stored = store_of(request).create(rf)
+    room_id, stored = await run_in_threadpool(store_of(request).create, rf)
     return {"id": room_id, "revision": stored.revision, "name": stored.room.name}
 
 
@@ -60,14 +61,17 @@ async def create_room(request: Request):
 )
 async def import_room(request: Request):
     rf = await room_from_body(request)
-    store = store_of(request)
+    room_id, stored = await run_in_threadpool(_import, store_of(request), rf)
+    return {"id": room_id, "revision": stored.revision, "name": stored.room.name}
+
+
+def _import(store, rf):
     names = {s.name for s in store.list()}
     name, n = rf.room.name, 2
     while name in names:
         name, n = f"{rf.room.name} ({n})", n + 1
     rf = rf.model_copy(update={"room": rf.room.model_copy(update={"name": name[:120]})})
-    room_id, stored = store.create(rf)
-    return {"id": room_id, "revision": stored.revision, "name": stored.room.name}
+    return store.create(rf)
 
 
 @router.get("/{room_id}", responses=ERRORS, summary="Read a room file")
@@ -84,10 +88,12 @@ def read_room(request: Request, room_id: str) -> dict[str, Any]:
 )
 async def save_room(room_id: str, request: Request):
     store = store_of(request)
-    load_room(store, room_id)
+    await run_in_threadpool(load_room, store, room_id)
     rf = await room_from_body(request)
     try:
-        stored = store.save(room_id, rf)
+        stored = await run_in_threadpool(store.save, room_id, rf)
+    except RoomNotFound as exc:  # deleted while the body was arriving
+        raise not_found(f"room '{room_id[:80]}' was deleted while this save was arriving; nothing was saved") from exc
     except StaleRevision as exc:
         raise ApiError(
             409,
@@ -99,12 +105,26 @@ async def save_room(room_id: str, request: Request):
     return {"id": room_id, "revision": stored.revision, "name": stored.room.name}
 
 
+@router.post(
+    "/{room_id}/restore-previous",
+    response_model=SavedOut,
+    responses=ERRORS,
+    summary="Make the previous saved revision current again (as a new revision)",
+)
+def restore_previous(request: Request, room_id: str):
+    try:
+        stored = store_of(request).restore_previous(room_id)
+    except RoomNotFound as exc:
+        raise not_found(f"room '{room_id[:80]}' has no previous revision to restore") from exc
+    return {"id": room_id, "revision": stored.revision, "name": stored.room.name}
+
+
 @router.delete("/{room_id}", status_code=204, responses=ERRORS)
 def delete_room(request: Request, room_id: str):
     try:
         store_of(request).delete(room_id)
     except RoomNotFound as exc:
-        raise not_found(f"no room with id '{room_id}'") from exc
+        raise not_found(f"no room with id '{room_id[:80]}'") from exc
     return Response(status_code=204)
 
 

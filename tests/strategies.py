@@ -1,0 +1,53 @@
+"""Hypothesis strategies that build valid room files (for schemathesis and the stateful API run).
+
+Each room starts from a sample and varies what a grower varies (fixture position, height, dimming, on/off,
+photoperiod, name), staying inside the rules the room file enforces, so the API answers 2xx and the engine,
+the analysis and the planner are reached with valid input.
+"""
+
+from __future__ import annotations
+
+import copy
+
+from hypothesis import strategies as st
+
+from app.room import layout
+from tests.conftest import sample_doc
+
+SAMPLE_NAMES = ("hobby-tent-peppers", "research-chamber-metric", "three-tier-greens-rack", "basement-two-benches")
+
+
+@st.composite
+def valid_room_docs(draw, names=SAMPLE_NAMES) -> dict:
+    doc = copy.deepcopy(sample_doc(draw(st.sampled_from(names))))
+    room = doc["room"]
+    room["name"] = draw(st.text(st.characters(categories=("L", "N")), min_size=1, max_size=30).map(str.strip)) or "R"
+    room["grid_spacing_m"] = max(room["grid_spacing_m"], 0.05)  # keep each example quick
+    room["schedule"]["photoperiod_h"] = draw(st.floats(8, 18).map(lambda h: round(h, 2)))
+    types = {t["id"]: t for t in room["fixture_types"]}
+    zones = [_Zone(z) for z in room["zones"]]
+    for f in room["fixtures"]:
+        f["dimming_pct"] = draw(st.floats(10, 100).map(lambda d: round(d, 1)))
+        f["on"] = draw(st.booleans())
+        g = types[f["type_id"]]["geometry"]
+        hx, hy = layout.rotated_half_extent_m(g["length_m"], g["width_m"], f["rotation_deg"])
+        lit = layout.zone_lit_by(zones, _Fixture(f))
+        # Move it within the zone it lights (or the room), keeping its footprint inside the walls.
+        x0, x1 = (lit.x_m, lit.x_m + lit.width_m) if lit else (0.0, room["width_m"])
+        y0, y1 = (lit.y_m, lit.y_m + lit.length_m) if lit else (0.0, room["length_m"])
+        x0, x1 = max(x0, hx), min(x1, room["width_m"] - hx)
+        y0, y1 = max(y0, hy), min(y1, room["length_m"] - hy)
+        if x0 < x1:
+            f["x_m"] = round(draw(st.floats(x0, x1)), 4)
+        if y0 < y1:
+            f["y_m"] = round(draw(st.floats(y0, y1)), 4)
+    return doc
+
+
+class _Zone:
+    def __init__(self, z: dict) -> None:
+        self.__dict__.update(z)
+
+
+class _Fixture(_Zone):
+    pass
