@@ -38,10 +38,25 @@ from app.web.routes import (
     planner,
     rooms,
     sheet,
+    variants,
     year,
 )
 
-ROUTERS = (pages, rooms, analysis, planner, photometry, library, meter, year, sheet, docs, footprints, fixture_types)
+ROUTERS = (
+    pages,
+    rooms,
+    analysis,
+    planner,
+    photometry,
+    library,
+    meter,
+    year,
+    sheet,
+    docs,
+    footprints,
+    fixture_types,
+    variants,
+)
 
 
 def create_app(settings: Settings | None = None) -> FastAPI:

@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import datetime as dt
+import math
 from typing import Any
 
 from app import __version__
@@ -108,5 +109,48 @@ def planner(room_id: str, room_file: RoomFile) -> dict[str, Any]:
         "room_file": dump_room_file(room_file),
         "fixture_types": types,
         "zones": [{"id": z.id, "name": z.name} for z in room.zones],
+        "version": __version__,
+    }
+
+
+# Step of the compare page's contour lines and range rounding: multiples of 5, 10, 25, 50 or 100 µmol m⁻² s⁻¹.
+_PPFD_STEPS = (5, 10, 25, 50, 100, 250, 500)
+
+
+def compare(rooms: list[tuple[str, RoomFile, dict[str, Any]]]) -> dict[str, Any]:
+    """Two rooms (or variants) side by side: per-zone figures, energy, cost, heat; both maps on one colour range."""
+    top = max((z["target"]["ppfd_stress"] for _, _, a in rooms for z in a["zones"]), default=1000.0)
+    step = next((s for s in _PPFD_STEPS if top / s <= 8), _PPFD_STEPS[-1])
+    columns = []
+    for room_id, rf, a in rooms:
+        columns.append(
+            {
+                "id": room_id,
+                "name": rf.room.name,
+                "revision": rf.revision,
+                "units": rf.room.display_units,
+                "zones": [
+                    {
+                        "name": z["name"],
+                        "crop": f"{z['crop_name']}, {z['stage']}",
+                        "ppfd": z["ppfd"],
+                        "dli": z["dli"],
+                        "target": z["target"],
+                        "share_in_band": z["share_in_band"],
+                        "dark_m2": z["dark"]["area_m2"],
+                        "hot_m2": z["hot"]["area_m2"],
+                        "grid": {k: z["grid"][k] for k in ("x_m", "y_m", "ppfd")} if z.get("grid") else None,
+                    }
+                    for z in a["zones"]
+                ],
+                "energy": a["energy"],
+                "heat": a["heat"],
+            }
+        )
+    return {
+        "title": f"Compare: {columns[0]['name']} and {columns[1]['name']}",
+        "rooms": columns,
+        "range": {"zmin": 0, "zmax": step * math.ceil(top / step), "step": step},
+        "colour_scale": colour_scale(),
         "version": __version__,
     }

@@ -2,6 +2,7 @@
 
 import { request, problemsText } from "../lib/api.js";
 import { wireNewRoom } from "./newroom.js";
+import { wireList } from "./list.js";
 
 const page = JSON.parse(document.getElementById("page-data").textContent);
 const message = document.getElementById("import-message");
@@ -45,3 +46,4 @@ target.addEventListener("drop", (ev) => {
 });
 
 wireNewRoom(page);
+wireList();
