@@ -157,10 +157,10 @@ export function createPlan(svg, cb) {
       t.textContent = `${o.name} (${L(o.z_m)}–${L(o.z_m + o.height_m)})`;
     }
     const types = Object.fromEntries(room.fixture_types.map((t) => [t.id, t]));
-    const zoneNames = Object.fromEntries(room.zones.map((z) => [z.id, z.name]));
+    const zoneNames = Object.fromEntries(room.zones.map((zz) => [zz.id, zz.name]));
     const fg = el("g", { class: "fixtures" }, svg);
     for (const f of room.fixtures) {
-      const zid = opts.zoneOf(f);
+      const z = opts.zoneOf(f), zid = z ? z.id : null;
       if (tier && zid !== tier) continue;
       fixtureShape(fg, f, types[f.type_id], opts.selection.has(f.id), zoneNames[zid]);
     }
