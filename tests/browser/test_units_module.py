@@ -124,9 +124,10 @@ def test_input_form_is_typeable_ascii(units):
 
 def test_area_mass_temperature(units):
     # 1 ft² = 0.09290304 m² exactly; 1 lb = 0.45359237 kg exactly (NIST SP 811).
-    assert value(units("area", 0.09290304 * 12.0, "imperial")) == "12 ft²"
+    assert value(units("area", 0.09290304 * 12.0, "imperial")) == "12.0 ft²"
     assert value(units("area", 1.23456, "metric")) == "1.23 m²"
-    assert value(units("mass", 10 * KG_PER_LB, "imperial")) == "10 lb"
+    assert value(units("mass", 10 * KG_PER_LB, "imperial")) == "10.0 lb"
+    assert value(units("weight", 4.5, "imperial")) == "9.9 lb (4.5 kg)"
     assert_allclose(value(units("parseMass", "5.5 lb", "metric")), 5.5 * KG_PER_LB, rtol=1e-12)
     assert value(units("temperature", 25, "imperial")) == "77 °F"  # °F = °C × 9/5 + 32
 

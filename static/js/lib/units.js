@@ -10,12 +10,51 @@ const SHOWN_HALVES = 2;                    // plan labels and tables show length
 const FRACTION_GLYPHS = { 1: "⅛", 2: "¼", 3: "⅜", 4: "½", 5: "⅝", 6: "¾", 7: "⅞" };
 const GLYPH_TEXT = { "½": "1/2", "¼": "1/4", "¾": "3/4", "⅛": "1/8", "⅜": "3/8", "⅝": "5/8", "⅞": "7/8" };
 
-function round(v, digits) { const k = 10 ** digits; return Math.round(v * k) / k; }
+/** The one rounding rule, shared with the server (app/room/units.py) and checked against its table. */
+export const ROUNDING = "half-away-from-zero";
+const NOISE_DIGITS = 12;   // significant digits kept before rounding a current up (0.1 + 0.2 is 0.3, not 0.4)
+
+// The exact value of a number's shortest decimal form, as a fraction of BigInts [numerator, denominator].
+function fraction(v) {
+  let s = String(Math.abs(v)), exp = 0;
+  if (s.includes("e")) { const [a, b] = s.split("e"); s = a; exp = Number(b); }
+  const [whole, frac = ""] = s.split(".");
+  let n = BigInt(whole + frac), d = 1n;
+  const k = frac.length - exp;
+  if (k >= 0) d = 10n ** BigInt(k); else n *= 10n ** BigInt(-k);
+  return [v < 0 ? -n : n, d];
+}
+
+/**
+ * v × num / den rounded half away from zero to `digits` decimals, computed exactly on v's shortest decimal
+ * form (so a conversion such as metres to inches, ÷ 0.0254, cannot push an exact half below half).
+ */
+export function roundHalfAway(v, digits = 0, num = 1n, den = 1n) {
+  const [n0, d0] = fraction(v);
+  const neg = n0 < 0n, scale = 10n ** BigInt(Math.max(digits, 0));
+  const n = (neg ? -n0 : n0) * num * scale, d = d0 * den;
+  const q = (2n * n + d) / (2n * d);
+  const r = Number(`${q}e-${Math.max(digits, 0)}`);
+  return neg && r !== 0 ? -r : r;
+}
+
+/** Round towards +infinity to `digits` decimals, ignoring float noise past 12 significant digits. */
+export function roundUp(v, digits = 0) {
+  const [n0, d] = fraction(Number(Number(v).toPrecision(NOISE_DIGITS)));
+  const n = n0 * 10n ** BigInt(digits);
+  const q = n >= 0n ? (n + d - 1n) / d : -((-n) / d);
+  return Number(`${q}e-${digits}`);
+}
+
+function round(v, digits) { return roundHalfAway(v, digits); }
 const finite = (v) => v !== null && v !== undefined && Number.isFinite(v);
+const IN_NUM = 10000n, IN_DEN = 254n;                  // 1 m = 10000/254 in, exactly
+const FT2_NUM = 100000000n, FT2_DEN = 9290304n;        // 1 m² = 10⁸/9290304 ft², exactly
+const LB_NUM = 100000000n, LB_DEN = 45359237n;         // 1 kg = 10⁸/45359237 lb, exactly
 
 // Feet, whole inches and eighths of an inch for a length rounded to 1/steps inch.
 function feetInches(m, steps) {
-  const all = Math.round((Math.abs(m) / M_PER_IN) * steps) * (INPUT_EIGHTHS / steps);
+  const all = roundHalfAway(Math.abs(m), 0, IN_NUM * BigInt(steps), IN_DEN) * (INPUT_EIGHTHS / steps);
   let eighths = all;
   const ft = Math.floor(eighths / (12 * INPUT_EIGHTHS));
   eighths -= ft * 12 * INPUT_EIGHTHS;
@@ -39,7 +78,8 @@ export function length(m, system, opts = {}) {
     return p.ft ? `${p.sign === "-" ? "−" : ""}${p.ft}′ ${inch}` : `${p.sign === "-" ? "−" : ""}${inch}`;
   }
   // Decide on the rounded value, so 0.99996 m shows as 1 m, never as 100 cm.
-  if (Math.abs(round(m * 100, 1)) < 100) return `${round(m * 100, 1)} cm`;
+  const cm = roundHalfAway(m, 1, 100n);
+  if (Math.abs(cm) < 100) return `${cm} cm`;
   return `${round(m, 3)} m`;
 }
 
@@ -51,7 +91,8 @@ export function lengthInput(m, system) {
     const inch = p.eighths ? (p.inches ? `${p.inches} ${eighthText(p.eighths)}` : eighthText(p.eighths)) : `${p.inches}`;
     return p.ft ? `${p.sign}${p.ft}' ${inch}"` : `${p.sign}${inch}"`;
   }
-  if (Math.abs(round(m * 100, 1)) < 100) return `${round(m * 100, 1)} cm`;
+  const cm = roundHalfAway(m, 1, 100n);
+  if (Math.abs(cm) < 100) return `${cm} cm`;
   return `${round(m, 4)} m`;
 }
 
@@ -109,17 +150,36 @@ function notALength(text) {
   return new Error(`“${text}” is not a length: try 4' 6 1/2", 54 in, 1.37 m or 137 cm`);
 }
 
+/** A figure with a fixed number of decimals, rounded half away from zero ("–" for none, never "-0"). */
+export function number(v, digits = 0) {
+  if (!finite(v)) return "–";
+  const r = roundHalfAway(v, digits);
+  return (r === 0 ? 0 : r).toFixed(digits);
+}
+
+/** A current in amperes, always rounded up: "5.3 A". */
+export function current(amps, digits = 1) {
+  return finite(amps) ? `${roundUp(amps, digits).toFixed(digits)} A` : "–";
+}
+
 /** Area: ft² to 0.1, m² to 0.01. */
 export function area(m2, system) {
   if (!finite(m2)) return "–";
-  if (system === "imperial") return `${round(m2 * FT2_PER_M2, 1)} ft²`;
-  return `${round(m2, 2)} m²`;
+  if (system === "imperial") return `${(roundHalfAway(m2, 1, FT2_NUM, FT2_DEN) || 0).toFixed(1)} ft²`;
+  return `${number(m2, 2)} m²`;
 }
 
-/** Mass: lb to 0.1, kg to 0.01. */
+/** Weight: pounds first in imperial ("9.9 lb (4.5 kg)"), kilograms in metric. */
+export function weight(kg, system) {
+  if (!finite(kg)) return "–";
+  if (system === "imperial") return `${(roundHalfAway(kg, 1, LB_NUM, LB_DEN) || 0).toFixed(1)} lb (${number(kg, 1)} kg)`;
+  return `${number(kg, 1)} kg`;
+}
+
+/** Mass in one unit, as a box shows it: "9.9 lb" or "4.5 kg". */
 export function mass(kg, system) {
   if (!finite(kg)) return "–";
-  return system === "imperial" ? `${round(kg / KG_PER_LB, 1)} lb` : `${round(kg, 2)} kg`;
+  return system === "imperial" ? `${(roundHalfAway(kg, 1, LB_NUM, LB_DEN) || 0).toFixed(1)} lb` : `${number(kg, 2)} kg`;
 }
 
 /** Mass from "2.5 kg", "5.5 lb", "12 oz" or a bare number in the system's unit (kg or lb). */
@@ -134,7 +194,7 @@ export function parseMass(text, system) {
 /** Temperature from °C: °F in imperial. */
 export function temperature(c, system) {
   if (!finite(c)) return "–";
-  return system === "imperial" ? `${round(c * 9 / 5 + 32, 0)} °F` : `${round(c, 1)} °C`;
+  return system === "imperial" ? `${number(c * 9 / 5 + 32, 0)} °F` : `${number(c, 1)} °C`;
 }
 
 /** Plot axes: feet or metres. */
