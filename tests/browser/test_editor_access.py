@@ -79,5 +79,26 @@ def test_a_stacked_rack_shows_each_tier_with_its_own_fixtures(live_server, page)
     lit = page.evaluate("() => window.leafcast.analysis.fixture_zones")
     for zone in doc["room"]["zones"]:
         page.select_option("#tier", zone["id"])
-        shown = sorted(page.eval_on_selector_all("#plan [data-fixture-id]", "els => els.map((e) => e.dataset.fixtureId)"))
+        shown = sorted(
+            page.eval_on_selector_all("#plan [data-fixture-id]", "els => els.map((e) => e.dataset.fixtureId)")
+        )
         assert shown == sorted(f for f, z in lit.items() if z == zone["id"]) and shown, zone["id"]
+
+
+def test_renaming_in_the_editor_moves_the_address(live_server, page):
+    room = fresh_room(live_server, name="Rename me tent")
+    page.goto(f"{live_server}/rooms/{room}")
+    wait_analysis_idle(page)
+    page.fill("#room-name", "Autumn peppers")
+    page.press("#room-name", "Tab")
+    page.wait_for_url("**/rooms/autumn-peppers")
+    rev = api(live_server, "/api/rooms/autumn-peppers")["revision"]
+    # Later saves go to the new id; the old address leads there. (Clicking a fixture moves the focus to the
+    # plan, so the arrow keys move it rather than the box that had the focus.)
+    page.locator('[data-fixture-id="F1"]').click()
+    page.keyboard.press("ArrowRight")
+    wait_saved(page, rev)
+    assert api(live_server, "/api/rooms/autumn-peppers")["revision"] > rev
+    page.goto(f"{live_server}/rooms/{room}")
+    assert page.url.endswith("/rooms/autumn-peppers")
+    assert page.get_attribute("#sheet-link", "href") == "/rooms/autumn-peppers/sheet"

@@ -2,7 +2,7 @@
 // shown as a choice, a refused save explained. The banner is the one place messages about the file appear.
 
 import { request, problemsText } from "../lib/api.js";
-import { $, roomId, state, emit } from "./state.js";
+import { $, state, emit } from "./state.js";
 import { snapshot, remember } from "./history.js";
 
 const SAVE_DELAY_MS = 700;
@@ -25,13 +25,12 @@ export async function save(force) {
   const doc = Object.assign({}, state.doc, { revision: state.savedRevision });
   status("Saving…");
   try {
-    const res = await request(`/api/rooms/${roomId}`, { method: "PUT", body: doc });
+    const res = await request(`/api/rooms/${state.roomId}`, { method: "PUT", body: doc });
     if (res.ok) {
       state.savedRevision = res.body.revision;
       state.doc.revision = res.body.revision;
       if (snapshot() === sent) state.dirty = false;
       status(state.dirty ? "Unsaved changes…" : `Saved · revision ${res.body.revision}`);
-      if (res.body.id && res.body.id !== roomId) emit("moved", res.body.id);
       hideBanner();
     } else if (res.status === 409) {
       state.conflict = true;
@@ -46,6 +45,19 @@ export async function save(force) {
   } finally {
     saving = false;
   }
+}
+
+/** Rename the room: saved first, then the server moves it to an id from the new name (the old one redirects). */
+export async function rename(name) {
+  await flush();
+  const res = await request(`/api/rooms/${state.roomId}/rename`, { method: "POST", body: { name } });
+  if (!res.ok) { showBanner(`Not renamed: ${problemsText(res.body)}`, [["Dismiss", hideBanner]]); return false; }
+  state.savedRevision = res.body.revision;
+  state.doc.revision = res.body.revision;
+  state.doc.room.name = res.body.name;
+  if (res.body.id !== state.roomId) { state.roomId = res.body.id; emit("moved", res.body.id); }
+  status(`Saved · revision ${res.body.revision}`);
+  return true;
 }
 
 export function flush() { return state.dirty && !state.conflict ? save() : Promise.resolve(); }
@@ -70,7 +82,7 @@ function showConflict(message) {
   showBanner(`Someone else saved this room (revision ${state.theirRevision}) while you were editing. ${message} ` +
     "Choose: load their version (yours stays in Undo), or save yours over it.", [
     ["Load their version", async () => {
-      const res = await request(`/api/rooms/${roomId}`);
+      const res = await request(`/api/rooms/${state.roomId}`);
       if (!res.ok) return;
       remember();
       state.doc = res.body;

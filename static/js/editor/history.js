@@ -5,7 +5,7 @@ import { page, roomId, state, emit } from "./state.js";
 import { roomProblems } from "./validate.js";
 
 const MAX_STEPS = 200;
-const KEY = `leafcast-undo:${roomId}`;
+let KEY = `leafcast-undo:${roomId}`;
 const undoStack = [], redoStack = [];
 
 export function snapshot() { return JSON.stringify({ room: state.doc.room, custom_crops: state.doc.custom_crops }); }
@@ -78,3 +78,10 @@ export function redo() {
 }
 
 export function saveHistory() { persist(); }
+
+/** The room moved to a new id (a rename): keep its history under the new one. */
+export function moveHistory(id) {
+  try { sessionStorage.removeItem(KEY); } catch (e) { /* nothing kept */ }
+  KEY = `leafcast-undo:${id}`;
+  persist();
+}

@@ -3,8 +3,8 @@
 import * as Units from "../lib/units.js";
 import { escapeHtml } from "../lib/format.js";
 import { request, abort, isAbort, problemsText } from "../lib/api.js";
-import { $, roomId, state, on, emit, room, fixture, clampInside, round4, stacked, zonesBottomUp, zoneOf, rememberUnits } from "./state.js";
-import { remember, undo, redo, canUndo, canRedo, reloadHistory, saveHistory } from "./history.js";
+import { $, state, on, emit, room, fixture, clampInside, round4, stacked, zonesBottomUp, zoneOf, rememberUnits } from "./state.js";
+import { remember, undo, redo, canUndo, canRedo, reloadHistory, saveHistory, moveHistory } from "./history.js";
 import { scheduleSave, flush, showBanner, hideBanner } from "./autosave.js";
 import { createPlan } from "./plan.js";
 import { drawMap, markStale } from "./map.js";
@@ -125,7 +125,12 @@ on("changed", (opts = {}) => {
 on("selection", () => { render(); if (state.selection.size) { showTab("fixture", false); prefetch(state.selection); } });
 on("regions", () => { render(); requestAnalysis(); });
 on("map-zone", () => { fillMapZones(state.analysis); drawMap(); });
-on("moved", (id) => { history.replaceState(null, "", `/rooms/${id}`); });
+on("moved", (id) => {
+  history.replaceState(null, "", `/rooms/${id}`);
+  $("plan-link").href = `/rooms/${id}/plan`;
+  $("sheet-link").href = `/rooms/${id}/sheet`;
+  moveHistory(id);
+});
 
 // ---------------------------------------------------------------- plan and dragging
 const plan = createPlan($("plan"), {
@@ -247,7 +252,7 @@ $("open-file").addEventListener("change", (ev) => {
 });
 $("download").addEventListener("click", async () => {
   await flush();
-  window.location.href = `/api/rooms/${roomId}/file`;
+  window.location.href = `/api/rooms/${state.roomId}/file`;
 });
 
 // ---------------------------------------------------------------- start

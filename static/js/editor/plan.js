@@ -222,6 +222,9 @@ export function createPlan(svg, cb) {
       if (!ev.shiftKey) cb.onPick(null, false);
     }
     ev.preventDefault();
+    // preventDefault keeps the page from selecting text, and also from moving the focus: move it here, so the
+    // arrow keys act on the plan and not on the box that had the focus before.
+    svg.focus({ preventScroll: true });
   });
   svg.addEventListener("pointermove", (ev) => {
     if (!drag) return;

@@ -8,6 +8,7 @@ export const $ = (id) => document.getElementById(id);
 const UNITS_KEY = "leafcast-units";
 
 export const state = {
+  roomId,                          // follows a rename (the old address redirects)
   doc: page.room_file,             // the working copy (SI units)
   savedRevision: page.room_file.revision,
   analysis: page.analysis,

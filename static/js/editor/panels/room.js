@@ -4,6 +4,7 @@
 import * as Units from "../../lib/units.js";
 import { escapeHtml } from "../../lib/format.js";
 import { $, page, state, room, round4 } from "../state.js";
+import { rename } from "../autosave.js";
 import { setIfIdle, tryCommit, lengthOf, numberOf, showFieldError, clearFieldError } from "../fields.js";
 
 const SAME_M = 0.01;            // edges within 1 cm are "the same"
@@ -69,7 +70,8 @@ export function wireRoomPanel() {
   $("room-name").addEventListener("change", () => {
     const v = $("room-name").value.trim();
     if (!v) return showFieldError($("room-name"), "a room needs a name");
-    tryCommit($("room-name"), (r) => { r.name = v.slice(0, 120); });
+    clearFieldError($("room-name"));
+    if (v !== room().name) rename(v.slice(0, 120));
   });
   for (const input of document.querySelectorAll("[data-room-length]")) {
     input.addEventListener("change", () => {
