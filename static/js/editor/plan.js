@@ -149,11 +149,14 @@ export function createPlan(svg, cb) {
     // With one tier shown, draw only the obstacles between its canopy and the shelf right above it.
     const shown = tier ? room.zones.find((z) => z.id === tier) : null;
     const cover = shown ? Math.min(...room.obstacles.filter((o) => o.z_m >= shown.canopy_height_m).map((o) => o.z_m), Infinity) : Infinity;
+    const labelsAt = new Map();
     for (const o of room.obstacles) {
       if (shown && (o.z_m + o.height_m < shown.canopy_height_m - 0.1 || o.z_m > cover + 1e-6)) continue;
       rect(o.x_m, o.y_m, o.x_m + o.width_m, o.y_m + o.length_m, { class: "obstacle" }, svg);
       const [ox, oy] = toScreen(o.x_m, o.y_m);
-      const t = el("text", { x: ox + 4, y: oy - 4, class: "obstacle-label" }, svg);
+      const spot = `${ox.toFixed(0)},${oy.toFixed(0)}`, stackedLabels = labelsAt.get(spot) || 0;
+      labelsAt.set(spot, stackedLabels + 1);   // shelves one above another: their labels one above another
+      const t = el("text", { x: ox + 4, y: oy - 4 - 12 * stackedLabels, class: "obstacle-label" }, svg);
       t.textContent = `${o.name} (${L(o.z_m)}–${L(o.z_m + o.height_m)})`;
     }
     const types = Object.fromEntries(room.fixture_types.map((t) => [t.id, t]));

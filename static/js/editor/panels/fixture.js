@@ -24,6 +24,8 @@ const byId = (r, id) => r.fixtures.find((f) => f.id === id);
 
 export function renderFixturePanel() {
   fillPalette();
+  const zsel = $("arr-zone"), zopts = room().zones.map((zz) => `<option value="${escapeHtml(zz.id)}">${escapeHtml(zz.name)}</option>`).join("");
+  if (zsel.innerHTML !== zopts) zsel.innerHTML = zopts;
   const sel = [...state.selection].map(fixture).filter(Boolean);
   $("sel-none").hidden = sel.length > 0;
   $("sel-fields").hidden = sel.length === 0;
@@ -42,8 +44,6 @@ export function renderFixturePanel() {
   if (circ.innerHTML !== opts) circ.innerHTML = opts;
   circ.value = f.circuit;
   $("f-on").checked = f.on;
-  const zsel = $("arr-zone"), zopts = room().zones.map((zz) => `<option value="${escapeHtml(zz.id)}">${escapeHtml(zz.name)}</option>`).join("");
-  if (zsel.innerHTML !== zopts) zsel.innerHTML = zopts;
 }
 
 export function removeSelected() {
