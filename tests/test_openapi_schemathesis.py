@@ -139,11 +139,64 @@ def _every_operation(api, room_doc):
         body={"readings": readings, "cell_m": 0.1, "hanging_height_m": 0.5},
         media_type="application/json",
     )
-    call("GET", "/api/library/fixtures")
+    library = call("GET", "/api/library/fixtures").json()
     call("GET", "/api/library/crops")
+    _meter_and_year(call, rid, room_doc, library)
+    call("POST", "/api/rooms/{room_id}/restore-previous", path_parameters=rid)
+    call("GET", "/api/rooms/{room_id}/plan.dxf", path_parameters=rid)
     call("DELETE", "/api/rooms/{room_id}", path_parameters=rid)
     missing = set(ops) - reached
     assert not missing, f"operations not reached with a 2xx answer: {sorted(missing)}"
+
+
+def _meter_and_year(call, rid, room_doc, library):
+    """Readings, their comparison and fit, output age, the fixture card, nested squares, the cycle and year."""
+    zone = room_doc["room"]["zones"][0]
+    revision = call("GET", "/api/rooms/{room_id}", path_parameters=rid).json()["revision"]
+    reading_set = {
+        "id": "check",
+        "zone_id": zone["id"],
+        "taken_on": "2026-11-30",
+        "grid": {
+            "origin_x_m": zone["x_m"] + 0.1,
+            "origin_y_m": zone["y_m"] + 0.1,
+            "spacing_x_m": 0.1,
+            "spacing_y_m": 0.1,
+            "values": [[400.0, 410.0, 405.0], [395.0, 420.0, 400.0]],
+        },
+    }
+    saved = call(
+        "POST",
+        "/api/rooms/{room_id}/readings",
+        path_parameters=rid,
+        body={"revision": revision, "reading_set": reading_set},
+        media_type="application/json",
+    ).json()
+    sid = {**rid, "set_id": "check"}
+    call("GET", "/api/rooms/{room_id}/readings/{set_id}/compare", path_parameters=sid)
+    applied = call(
+        "POST",
+        "/api/rooms/{room_id}/readings/{set_id}/apply",
+        path_parameters=sid,
+        body={"revision": saved["revision"], "fit": "room"},
+        media_type="application/json",
+    ).json()
+    aged = call(
+        "POST",
+        "/api/rooms/{room_id}/output-age",
+        path_parameters=rid,
+        body={"revision": applied["revision"], "output_age": {"hours_in_service_h": 12000}},
+        media_type="application/json",
+    ).json()
+    call("DELETE", "/api/rooms/{room_id}/readings/{set_id}", path_parameters=sid, query={"revision": aged["revision"]})
+    call("GET", "/api/fixture-card", query={"type_id": library[0]["id"], "height_m": 0.45})
+    call(
+        "GET",
+        "/api/rooms/{room_id}/zones/{zone_id}/squares",
+        path_parameters={**rid, "zone_id": zone["id"]},
+        query={"x_m": zone["x_m"] + zone["width_m"] / 2, "y_m": zone["y_m"] + zone["length_m"] / 2},
+    )
+    call("GET", "/api/rooms/{room_id}/year", path_parameters=rid)
 
 
 # -- stateful: create, update, analyse, plan, delete, in any order hypothesis picks -------------------------

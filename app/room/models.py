@@ -303,9 +303,18 @@ class PaybackPlan(Strict):
     horizon_years: int = Field(default=5, ge=1, le=30)
     discount_rate: float = Field(default=0.0, ge=0, le=0.5)
     match_light: bool = Field(default=True, description="Dim the new fixtures to the light the room has now.")
-    rated_hours_now: float = Field(default=50000.0, gt=0, le=1e6, description="Hours to 90 % output (L90), present.")
-    rated_hours_variant: float = Field(default=50000.0, gt=0, le=1e6, description="L90 hours of the new type.")
-    hours_run_now: float = Field(default=0.0, ge=0, le=1e6, description="Hours the present fixtures have run.")
+    rated_hours_now: float | None = Field(
+        default=None,
+        gt=0,
+        le=1e6,
+        description="L90 hours of the present fixtures; none: the type's maintenance record.",
+    )
+    rated_hours_variant: float | None = Field(
+        default=None, gt=0, le=1e6, description="L90 hours of the new type; none: its maintenance record."
+    )
+    hours_run_now: float | None = Field(
+        default=None, ge=0, le=1e6, description="Hours the present fixtures have run; none: the room's recorded age."
+    )
 
 
 class CanopyZone(Strict):
