@@ -175,6 +175,7 @@ class FixtureType(Strict):
     ppf_umol_s: float = Field(gt=0, le=20000, description="Photosynthetic photon flux at full power [µmol/s].")
     power_w: float = Field(gt=0, le=10000, description="Input power at full power [W].")
     weight_kg: float | None = Field(default=None, ge=0, le=500)
+    price: float | None = Field(default=None, ge=0, le=1_000_000, description="Price of one, in the room's currency.")
     notes: str = Field(default="", max_length=1000)
     hanging_points_m: list[tuple[Annotated[float, Field(ge=-2.5, le=2.5)], Annotated[float, Field(ge=-2.5, le=2.5)]]] | None = Field(
         default=None,
