@@ -145,6 +145,27 @@ def _every_operation(api, room_doc):
     _meter_and_year(call, rid, room_doc, library)
     call("POST", "/api/rooms/{room_id}/restore-previous", path_parameters=rid)
     call("GET", "/api/rooms/{room_id}/plan.dxf", path_parameters=rid)
+    check_job = call("POST", "/api/rooms/{room_id}/check-jobs", path_parameters=rid).json()
+    call("DELETE", "/api/plan-jobs/{job_id}", path_parameters={"job_id": check_job["job_id"]})
+    call("POST", "/api/footprints", body=room_doc, media_type="application/json")
+    call("POST", "/api/fixture-types/check", body=room_doc["room"]["fixture_types"][0], media_type="application/json")
+    variant = call(
+        "POST",
+        "/api/rooms/{room_id}/duplicate",
+        path_parameters=rid,
+        body={"name": "Variant B"},
+        media_type="application/json",
+    ).json()
+    moved = call(
+        "POST",
+        "/api/rooms/{room_id}/rename",
+        path_parameters={"room_id": variant["id"]},
+        body={"name": "Variant C"},
+        media_type="application/json",
+    ).json()
+    call("POST", "/api/rooms/{room_id}/trash", path_parameters={"room_id": moved["id"]})
+    call("GET", "/api/trash")
+    call("POST", "/api/trash/{room_id}/restore", path_parameters={"room_id": moved["id"]})
     call("DELETE", "/api/rooms/{room_id}", path_parameters=rid)
     missing = set(ops) - reached
     assert not missing, f"operations not reached with a 2xx answer: {sorted(missing)}"
