@@ -159,10 +159,13 @@ def bench_scene(name: str, scene: EngineScene, repeats: int, brute: bool, rng: n
     return result
 
 
-def browser_latency(rooms: list[str], moves: int = 25) -> list[dict]:
-    """Median time from a pointer move to the repainted map, in Debian's Chromium against a real server.
+def browser_latency(rooms: list[str], moves: int = 40, drops: int = 7) -> list[dict]:
+    """In Debian's Chromium against a real server: drag preview frames and mouse-up to exact figures.
 
-    Needs the test extra (playwright) and the chromium package; each move waits for its repaint.
+    While a fixture is dragged the editor composes the map from per-fixture footprints (no round trip); each
+    move waits for its painted frame (``since_move_ms``: pointer move to painted canvas, what sets the frame
+    rate). Each drop waits for the exact answer's figures (``drop_ms``: mouse-up to figures painted) and
+    then its map (``drop_map_ms``). Needs the test extra (playwright) and the chromium package.
     """
     import shutil
     import socket
@@ -187,33 +190,59 @@ def browser_latency(rooms: list[str], moves: int = 25) -> list[dict]:
     while not server.started:
         time.sleep(0.05)
     out = []
-    flags = list(CHROMIUM_FLAGS)
     try:
         with sync_playwright() as p:
-            browser = p.chromium.launch(executable_path=shutil.which("chromium"), args=flags)
+            browser = p.chromium.launch(executable_path=shutil.which("chromium"), args=list(CHROMIUM_FLAGS))
             page = browser.new_page(viewport={"width": 1280, "height": 800})
             for room in rooms:
-                page.goto(f"http://127.0.0.1:{port}/rooms/{room}")
-                page.wait_for_function("() => window.leafcast && window.leafcast.ready")
-                fid = page.evaluate("() => window.leafcast.doc.room.fixtures[0].id")
-                box = page.locator(f'[data-fixture-id="{fid}"]').bounding_box()
-                x, y = box["x"] + box["width"] / 2, box["y"] + box["height"] / 2
-                page.mouse.move(x, y)
-                page.mouse.down()
-                samples = []
-                for k in range(moves):
-                    n = page.evaluate("() => window.leafcast.timing.length")
-                    page.mouse.move(x + 3 * (k % 10) + 3, y)
-                    page.wait_for_function("n => window.leafcast.timing.length > n", arg=n)
-                    samples.append(page.evaluate("() => window.leafcast.timing.at(-1).since_move_ms"))
-                page.mouse.up()
-                out.append({"room": room, "median_ms": statistics.median(samples), "max_ms": max(samples)})
+                out.append(_drag_and_drop(page, f"http://127.0.0.1:{port}/rooms/{room}", room, moves, drops))
             browser.close()
     finally:
         server.should_exit = True
         thread.join(5)
         shutil.rmtree(data, ignore_errors=True)
     return out
+
+
+def _drag_and_drop(page, url: str, room: str, moves: int, drops: int) -> dict:
+    idle = "() => window.leafcast && window.leafcast.ready && !window.leafcast.analysing"
+    page.goto(url)
+    page.wait_for_function(idle)
+    fid = page.evaluate("() => window.leafcast.doc.room.fixtures[0].id")
+    with page.expect_response(lambda r: "/api/footprints" in r.url):
+        page.locator(f'[data-fixture-id="{fid}"]').click()
+    frames, paint, drop, drop_map = [], [], [], []
+    for d in range(drops):
+        page.wait_for_function(idle)
+        box = page.locator(f'[data-fixture-id="{fid}"]').bounding_box()
+        x, y = box["x"] + box["width"] / 2, box["y"] + box["height"] / 2
+        page.mouse.move(x, y)
+        page.mouse.down()
+        sign = 1 if d % 2 == 0 else -1
+        for k in range(moves // drops + 2):
+            n = page.evaluate("() => window.leafcast.previewFrames.length")
+            page.mouse.move(x + sign * (4 + 2 * k), y)  # past the 2 px a press may wobble before it drags
+            page.wait_for_function("n => window.leafcast.previewFrames.length > n", arg=n)
+            f = page.evaluate("() => window.leafcast.previewFrames.at(-1)")
+            frames.append(f["since_move_ms"])
+            paint.append(f["paint_ms"])
+        n = page.evaluate("() => window.leafcast.timing.length")
+        page.mouse.up()
+        page.wait_for_function("n => window.leafcast.timing.length > n", arg=n)
+        t = page.evaluate("() => window.leafcast.timing.at(-1)")
+        drop.append(t["since_move_ms"])
+        drop_map.append(t["map_ms"])
+    med = statistics.median
+    return {
+        "room": room,
+        "frame_ms": med(frames),
+        "frames_per_s_bound": 1000 / med(frames),
+        "paint_ms": med(paint),
+        "drop_ms": med(drop),
+        "drop_map_ms": med(drop_map),
+        "max_frame_ms": max(frames),
+        "max_drop_ms": max(drop),
+    }
 
 
 def sample(name: str) -> EngineScene:
@@ -297,8 +326,14 @@ def main(argv: list[str] | None = None) -> int:
     ap.add_argument("--repeats", type=int, default=9)
     ap.add_argument("--no-farm", action="store_true", help="skip the 1,000-fixture vertical farm")
     ap.add_argument("--json", type=Path, help="also write the figures to this file")
-    ap.add_argument("--no-planner", action="store_true", help="skip the planner timings")
+    ap.add_argument("--no-planner", action="store_true", help="skip the planner and check-my-setup timings")
+    ap.add_argument("--planner-repeats", type=int, default=3, help="runs per planner timing (median)")
     ap.add_argument("--browser", action="store_true", help="also time pointer move to repainted map in Chromium")
+    ap.add_argument(
+        "--safety",
+        action="store_true",
+        help="also: the cost model against measured times, and small requests beside the heaviest accepted one",
+    )
     ap.add_argument("--no-year", action="store_true", help="skip the cycle-and-year page timing")
     args = ap.parse_args(argv)
     rng = np.random.default_rng(1)
@@ -353,37 +388,47 @@ def main(argv: list[str] | None = None) -> int:
             + (f"{r['brute_ms']:>10.0f}{r['speedup']:>8.1f}x{r['rms_vs_brute']:>9.2%}" if "brute_ms" in r else "")
         )
     if not args.no_planner:
-        from app.service.planner import PlanOptions, plan
+        from app.bench_planner import planner_bench
 
-        for name, types in (
-            ("hobby-tent-peppers", ("bararray-4x0.6", "panel-0.6")),
-            ("basement-two-benches", ("panel-0.6", "bararray-6x1.0")),
-        ):
-            rf = parse_room_file((asset_dir("sample_rooms") / f"{name}.json").read_bytes())
-            runs = []
-            for _ in range(3):
-                clear_all_caches()  # every run starts cold: no footprint from an earlier run is reused
-                runs.append(plan(rf, PlanOptions(type_ids=types)))
-            first = statistics.median(r["first_feasible_s"] or float("nan") for r in runs)
-            final = statistics.median(r["elapsed_s"] for r in runs)
-            print(
-                f"planner, {name} ({', '.join(types)}): first feasible layout {first:.2f} s, final answer {final:.2f} s"
-            )
-            results.append({"scene": f"planner {name}", "first_feasible_s": first, "final_s": final})
+        results += planner_bench(args.planner_repeats, clear_all_caches)
     if not args.no_year:
         results.append(bench_year())
     if args.browser:
         for r in browser_latency(["hobby-tent-4-x-4-ft-peppers", "basement-room-10-x-12-ft-two-benches"]):
             print(
-                f"browser, pointer move to repainted map: {r['room']}: median {r['median_ms']:.0f} ms, "
-                f"max {r['max_ms']:.0f} ms"
+                f"browser {r['room']}: drag preview, pointer move to painted frame median {r['frame_ms']:.1f} ms "
+                f"(at most {r['frames_per_s_bound']:.0f} frames/s by latency; paint {r['paint_ms']:.1f} ms, max {r['max_frame_ms']:.0f} ms); "
+                f"mouse-up to exact figures median {r['drop_ms']:.0f} ms (max {r['max_drop_ms']:.0f}), "
+                f"to the redrawn map {r['drop_map_ms']:.0f} ms"
             )
             results.append({"scene": "browser " + r["room"], **r})
+    if args.safety:
+        results += safety_figures()
     rss = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024
     print(f"peak resident memory of this whole run: {rss:.0f} MiB (traced numpy peak per scene in the table)")
     if args.json:
         args.json.write_text(json.dumps(results, indent=1))
     return 0
+
+
+def safety_figures(budget_s: float = 20.0) -> list[dict]:
+    """Cost model estimate against measured seconds; small-request latency while a heavy analysis runs."""
+    from app.bench_safety import cost_model_table, heavy_beside_small
+
+    rows = cost_model_table()
+    print(f"\n{'cost model: scene':<44}{'points':>9}{'estimate s':>12}{'measured s':>12}{'ratio':>7}")
+    for r in rows:
+        ratio = r["estimate_s"] / max(r["measured_s"], 1e-9)
+        print(f"{r['scene']:<44}{r['points']:>9,}{r['estimate_s']:>12.2f}{r['measured_s']:>12.2f}{ratio:>7.2f}")
+    h = heavy_beside_small(budget_s)
+    print(
+        f"\nheavy request ({h['heavy_points']:,} points, {h['heavy_fixtures']} fixtures, budget {budget_s:g} s): "
+        f"answered {h['heavy_status']} in {h['heavy_s']:.1f} s\n"
+        f"small requests (room list API and page): alone p50 {h['alone_p50_ms']:.0f} ms, p95 {h['alone_p95_ms']:.0f} ms; "
+        f"beside it ({h['beside_n']} requests) p50 {h['beside_p50_ms']:.0f} ms, p95 {h['beside_p95_ms']:.0f} ms, "
+        f"max {h['beside_max_ms']:.0f} ms"
+    )
+    return [{"scene": "cost model " + r["scene"], **r} for r in rows] + [{"scene": "heavy beside small", **h}]
 
 
 if __name__ == "__main__":

@@ -106,13 +106,16 @@ def heaviest_accepted_room(budget_s: float) -> RoomFile:
     """A flat room whose estimate is close under the budget: the heaviest request the server accepts."""
     from app.service.cost import estimate
 
-    best = None
-    for spacing in (0.2, 0.14, 0.1, 0.08, 0.06, 0.05, 0.04, 0.035, 0.03, 0.025, 0.02):
-        rf = parse_room_file(json.dumps(big_room(40, 25, 16, spacing)))
-        if estimate(rf.room).seconds > 0.9 * budget_s:
-            break
-        best = rf
-    return best
+    for (width_m, length_m), n_side in [((40, 25), n) for n in (16, 8, 4)] + [((12, 8), n) for n in (4, 2, 1)]:
+        best = None
+        for spacing in (0.2, 0.14, 0.1, 0.08, 0.06, 0.05, 0.04, 0.035, 0.03, 0.025, 0.02):
+            rf = parse_room_file(json.dumps(big_room(width_m, length_m, n_side, spacing)))
+            if estimate(rf.room).seconds > 0.9 * budget_s:
+                break
+            best = rf
+        if best is not None:
+            return best
+    raise ValueError(f"no benchmark room fits a {budget_s:g} s budget")
 
 
 def _start_server(data: Path, budget_s: float) -> tuple[subprocess.Popen, str]:

@@ -41,6 +41,8 @@ def valid_room_docs(draw, names=SAMPLE_NAMES) -> dict:
             f["x_m"] = round(draw(st.floats(x0, x1)), 4)
         if y0 < y1:
             f["y_m"] = round(draw(st.floats(y0, y1)), 4)
+    if room["fixtures"] and not any(f["on"] for f in room["fixtures"]):
+        room["fixtures"][draw(st.integers(0, len(room["fixtures"]) - 1))]["on"] = True  # a lit room to analyse
     return doc
 
 

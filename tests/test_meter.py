@@ -362,3 +362,19 @@ def test_planner_curves_use_the_maintained_output():
     aged = curves(maintained_doc(hours_in_service_h=36000), "bench")
     assert_allclose([r["avg"] for r in aged["heights"]], [0.9 * r["avg"] for r in new["heights"]], rtol=1e-5)
     assert_allclose([r["avg"] for r in aged["dimming"]], [0.9 * r["avg"] for r in new["dimming"]], rtol=1e-5)
+
+
+def test_payback_does_not_age_the_fixtures_twice():
+    # The payback ages the fixtures year by year itself; which age the room's figures are shown at
+    # (a display choice) must not change it, or the ageing would be applied twice.
+    from app.service.payback import payback_report
+
+    doc = sample_doc("greenhouse-lettuce-bench")
+    for t in doc["room"]["fixture_types"]:
+        t["maintenance"] = {"rated_percent": 90, "rated_hours_h": 36000}
+    runs = []
+    for shown in ("installation", "recorded_age"):
+        doc["room"]["output_age"] = {"hours_in_service_h": 30000, "dirt_factor": 0.9, "shown_at": shown}
+        runs.append(payback_report(parse_room_file(to_json_bytes(doc))))
+    assert_allclose(runs[1]["now"]["mol_by_year"], runs[0]["now"]["mol_by_year"], rtol=1e-9)
+    assert_allclose(runs[1]["variant"]["mol_by_year"], runs[0]["variant"]["mol_by_year"], rtol=1e-9)

@@ -152,3 +152,20 @@ def test_sheet_prints_the_readings_beside_the_model_and_the_output_age(client, t
     html = client.get(f"/rooms/{room_id}/sheet").text
     assert "Meter readings beside the model" in html and "spot-check" in html
     assert "maintained at 12,000 h in service" in html
+
+
+def test_moving_a_zone_away_from_its_readings_is_refused_with_the_remedy(client, tent_doc):
+    room_id, rev = tent(client, tent_doc)
+    pt = {
+        "id": "edge",
+        "zone_id": "tent-floor",
+        "taken_on": "2026-11-30",
+        "points": [{"x_m": 1.1, "y_m": 1.1, "value": 300}],
+    }
+    client.post(f"/api/rooms/{room_id}/readings", json={"revision": rev, "reading_set": pt})
+    doc = client.get(f"/api/rooms/{room_id}").json()
+    doc["room"]["zones"][0]["width_m"] = 0.9  # the editor shrinks the zone
+    r = client.put(f"/api/rooms/{room_id}", content=json.dumps(doc))
+    assert r.status_code == 422
+    p = r.json()["problems"][0]
+    assert p["field"] == "room.readings[0].points[0]" and "fix reading set 'edge' on the meter page" in p["message"]

@@ -114,6 +114,7 @@ def _every_operation(api, room_doc):
     call("GET", "/api/rooms/{room_id}/zones/{zone_id}/grid.csv", path_parameters=zid)
     call("GET", "/api/rooms/{room_id}/zones/{zone_id}/map.svg", path_parameters=zid)
     call("GET", "/api/rooms/{room_id}/check", path_parameters=rid)
+    call("POST", "/api/rooms/{room_id}/check-jobs", path_parameters=rid)
     call("GET", "/api/rooms/{room_id}/curves", path_parameters=rid, query={"zone": zid["zone_id"]})
     job = call("POST", "/api/rooms/{room_id}/plan", path_parameters=rid, body={}, media_type="application/json")
     jid = {"job_id": job.json()["job_id"]}
@@ -123,8 +124,8 @@ def _every_operation(api, room_doc):
         "POST",
         "/api/photometry/import",
         query={"kind": "ies", "flux_unit": "photon"},
-        body=LAMBERTIAN_IES,
-        media_type="text/plain",
+        body=LAMBERTIAN_IES.encode(),
+        media_type="application/octet-stream",
     )
     call(
         "POST",
@@ -144,9 +145,43 @@ def _every_operation(api, room_doc):
     _meter_and_year(call, rid, room_doc, library)
     call("POST", "/api/rooms/{room_id}/restore-previous", path_parameters=rid)
     call("GET", "/api/rooms/{room_id}/plan.dxf", path_parameters=rid)
+    check_job = call("POST", "/api/rooms/{room_id}/check-jobs", path_parameters=rid).json()
+    call("DELETE", "/api/plan-jobs/{job_id}", path_parameters={"job_id": check_job["job_id"]})
+    call("POST", "/api/footprints", body=room_doc, media_type="application/json")
+    call("POST", "/api/fixture-types/check", body=room_doc["room"]["fixture_types"][0], media_type="application/json")
+    variant = call(
+        "POST",
+        "/api/rooms/{room_id}/duplicate",
+        path_parameters=rid,
+        body={"name": "Variant B"},
+        media_type="application/json",
+    ).json()
+    moved = call(
+        "POST",
+        "/api/rooms/{room_id}/rename",
+        path_parameters={"room_id": variant["id"]},
+        body={"name": "Variant C"},
+        media_type="application/json",
+    ).json()
+    call("POST", "/api/rooms/{room_id}/trash", path_parameters={"room_id": moved["id"]})
+    call("GET", "/api/trash")
+    call("POST", "/api/trash/{room_id}/restore", path_parameters={"room_id": moved["id"]})
     call("DELETE", "/api/rooms/{room_id}", path_parameters=rid)
     missing = set(ops) - reached
     assert not missing, f"operations not reached with a 2xx answer: {sorted(missing)}"
+
+
+def _model_readings(call, rid, zone, factor):
+    """A 2 x 3 grid of readings 10 cm apart from 10 cm inside the zone: the model's own map times a factor."""
+    a = call("GET", "/api/rooms/{room_id}/analysis", path_parameters=rid).json()
+    g = next(z for z in a["zones"] if z["id"] == zone["id"])["grid"]
+
+    def at(x, y):
+        j = min(range(len(g["y_m"])), key=lambda k: abs(g["y_m"][k] - y))
+        i = min(range(len(g["x_m"])), key=lambda k: abs(g["x_m"][k] - x))
+        return max(round(factor * g["ppfd"][j][i], 1), 1.0)
+
+    return [[at(zone["x_m"] + 0.1 * (c + 1), zone["y_m"] + 0.1 * (r + 1)) for c in range(3)] for r in range(2)]
 
 
 def _meter_and_year(call, rid, room_doc, library):
@@ -162,7 +197,7 @@ def _meter_and_year(call, rid, room_doc, library):
             "origin_y_m": zone["y_m"] + 0.1,
             "spacing_x_m": 0.1,
             "spacing_y_m": 0.1,
-            "values": [[400.0, 410.0, 405.0], [395.0, 420.0, 400.0]],
+            "values": _model_readings(call, rid, zone, 0.9),
         },
     }
     saved = call(
@@ -283,6 +318,16 @@ def test_stateful_room_lifecycle_has_no_server_error(api):
             if r.status_code == 202:
                 jid = {"job_id": r.json()["job_id"]}
                 assert self.call("DELETE", "/api/plan-jobs/{job_id}", path_parameters=jid).status_code == 200
+
+        @rule(rid=rooms)
+        def restore_previous(self, rid):
+            r = self.call("POST", "/api/rooms/{room_id}/restore-previous", path_parameters={"room_id": rid})
+            known = self.revisions.get(rid)
+            # A room has a previous revision once it was saved at least once after its creation.
+            assert r.status_code == (200 if known is not None and known > 1 else 404), r.text
+            if r.status_code == 200:
+                assert r.json()["revision"] == known + 1
+                self.revisions[rid] = known + 1
 
         @rule(rid=rooms)
         def delete(self, rid):

@@ -122,9 +122,12 @@ def test_proposals_never_break_a_constraint(name, types):
                 )
 
 
+TENT_TYPES = ("bararray-6x1.0", "spot-90")  # types that hang in the 4 ft tent with 10 cm gaps
+
+
 def test_tighter_budget_never_yields_more_power():
     rf = room("hobby-tent-peppers")
-    types = ("bararray-4x0.6", "panel-0.6")
+    types = TENT_TYPES
     free = plan(rf, PlanOptions(type_ids=types, objective="count"))
     top = max(p["figures"]["energy"]["power_w"] for p in free["proposals"])
     previous = np.inf
@@ -140,9 +143,10 @@ def test_tighter_budget_never_yields_more_power():
 
 def test_deterministic_for_a_fixed_seed():
     rf = room("hobby-tent-peppers")
-    a = plan(rf, PlanOptions(type_ids=("bararray-4x0.6",), seed=5))
-    b = plan(rf, PlanOptions(type_ids=("bararray-4x0.6",), seed=5))
-    c = plan(rf, PlanOptions(type_ids=("bararray-4x0.6",), seed=6))
+    a = plan(rf, PlanOptions(type_ids=TENT_TYPES, seed=5))
+    b = plan(rf, PlanOptions(type_ids=TENT_TYPES, seed=5))
+    c = plan(rf, PlanOptions(type_ids=TENT_TYPES, seed=6))
+    assert a["proposals"]
     assert [p["room_file"] for p in a["proposals"]] == [p["room_file"] for p in b["proposals"]]
     assert [p["layouts"] for p in a["proposals"]] == [p["layouts"] for p in c["proposals"]]  # the ranking is total
 
@@ -168,8 +172,9 @@ def test_check_my_setup_suggests_the_photoperiod_in_numbers():
     rf = parse_room_file(to_json_bytes(doc))
     r = check_setup(rf)
     assert not r["meets_target"]
-    fix = next(f for f in r["zones"][0]["fixes"] if f["kind"] == "photoperiod")
-    doc["room"]["schedule"]["photoperiod_h"] = fix["photoperiod_h"]
+    fix = next(f for f in r["zones"][0]["fixes"] if f["action"] == "set_photoperiod")
+    assert fix["zone"] == "tent-floor" and 8 < fix["hours"] <= 24
+    doc["room"]["zones"][0]["photoperiod_h"] = fix["hours"]
     assert check_setup(parse_room_file(to_json_bytes(doc)))["meets_target"]
 
 
@@ -195,7 +200,7 @@ def test_curves_scale_with_dimming_and_cover_the_heights():
 
 def test_planner_api_job(client):
     room_id = client.get("/api/rooms").json()[1]["id"]  # the hobby tent (sorted ids)
-    r = client.post(f"/api/rooms/{room_id}/plan", json={"type_ids": ["bararray-4x0.6"]})
+    r = client.post(f"/api/rooms/{room_id}/plan", json={"type_ids": list(TENT_TYPES)})
     assert r.status_code == 202
     job = r.json()["job_id"]
     for _ in range(300):

@@ -317,3 +317,20 @@ def _status_of(fig, band):
         )
         if bad
     ]
+
+
+def test_payback_takes_the_fixture_types_maintenance_record(bench_doc):
+    doc = copy.deepcopy(bench_doc)
+    plan = doc["room"]["payback"]
+    plan.update(rated_hours_now=None, rated_hours_variant=None, hours_run_now=None)
+    doc["room"]["fixture_types"][0]["maintenance"] = {"rated_percent": 90, "rated_hours_h": 36000}
+    v = year_view("x", parse_room_file(doc))["payback"]
+    assert v["maintenance_now"].startswith("rated L90 at 36,000 h")
+    assert "assumed" in v["maintenance_variant"] and v["hours_run_now"] == 0.0
+    # New fixtures at L90 36,000 h: year 1 (16 h × 365 = 5,840 h) keeps exp(−α t) on average, α = −ln 0.9 / 36,000
+    # (IES TM-21 exponential): mean = (1 − e^{−α·5840}) / (α·5840).
+    a = -np.log(0.9) / 36000
+    hours = v["now"]["hours_per_day"] * 365
+    assert_allclose(
+        v["now"]["mol_by_year"][0], v["now"]["mol_year_first"] * (1 - np.exp(-a * hours)) / (a * hours), rtol=1e-6
+    )

@@ -1,11 +1,8 @@
 """Payback of a lighting change: purchase against the running costs saved, year by year.
 
-Output falls as LEDs age. The exponential form of IES TM-21 is used for the
-maintained share of the first output, Φ(t)/Φ(0) = exp(−α t), with α set by the
-hours at which the share falls to a rated level (L90 = 90 %, for example).
-Photons to the canopy in each year are the first-year photons times the mean
-maintained share over that year's hours (the closed-form integral of the
-exponential), so the cost per mole rises with age.
+Output falls as LEDs age (the projection of IES TM-21, :mod:`app.engine.maintenance`).
+Photons to the canopy in each year are the photons of new fixtures times the mean
+maintained share over that year's hours, so the cost per mole rises with age.
 
 References
 ----------
@@ -23,13 +20,6 @@ import math
 import numpy as np
 
 
-def decay_per_hour(rated_hours: float, rated_share: float = 0.9) -> float:
-    """α of Φ(t)/Φ(0) = exp(−α t) such that the share is ``rated_share`` at ``rated_hours`` [1/h]."""
-    if rated_hours <= 0 or not 0 < rated_share < 1:
-        raise ValueError("rated_hours must be > 0 and rated_share in (0, 1)")
-    return -math.log(rated_share) / rated_hours
-
-
 def mean_maintained_share(alpha_per_h: float, start_h, end_h):
     """Mean of exp(−α t) over [start, end] hours of operation (closed form)."""
     a, b = np.asarray(start_h, dtype=float), np.asarray(end_h, dtype=float)
@@ -38,11 +28,16 @@ def mean_maintained_share(alpha_per_h: float, start_h, end_h):
     return (np.exp(-alpha_per_h * a) - np.exp(-alpha_per_h * b)) / (alpha_per_h * (b - a))
 
 
-def yearly_photons_mol(first_year_mol: float, hours_per_year: float, horizon_years: int, alpha_per_h: float):
-    """Photons delivered each year 1..horizon with output falling by exp(−α t) [mol]."""
-    years = np.arange(horizon_years)
-    share = mean_maintained_share(alpha_per_h, years * hours_per_year, (years + 1) * hours_per_year)
-    return first_year_mol * share
+def yearly_mean_share(share_at, start_h: float, hours_per_year: float, horizon_years: int, samples: int = 201):
+    """Mean maintained share in each year 1..horizon for any curve ``share_at(hours)`` (trapezoid rule).
+
+    A curve held flat beyond a projection limit (IES TM-21) is integrated as it is given.
+    """
+    out = np.empty(horizon_years)
+    for k in range(horizon_years):
+        t = np.linspace(start_h + k * hours_per_year, start_h + (k + 1) * hours_per_year, samples)
+        out[k] = np.trapezoid(share_at(t), t) / (t[-1] - t[0]) if t[-1] > t[0] else float(share_at(t[:1])[0])
+    return out
 
 
 def payback(

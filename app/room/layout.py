@@ -141,7 +141,13 @@ def rotated_half_extent_m(length_m: float, width_m: float, rotation_deg: float) 
     return 0.5 * (length_m * c + width_m * s), 0.5 * (length_m * s + width_m * c)
 
 
+def footprint_size_m(geometry) -> tuple[float, float]:
+    """Length and width of a fixture's emitting face in plan: a single bar is as wide as its bar."""
+    width = geometry.bar_width_m if geometry.kind == "bar" else geometry.width_m
+    return geometry.length_m, width
+
+
 def fixture_extent(fixture: _Fixture, fixture_type) -> tuple[float, float, float, float]:
     """The fixture's rotated footprint in plan, as (x0, y0, x1, y1) [m]."""
-    hx, hy = rotated_half_extent_m(fixture_type.geometry.length_m, fixture_type.geometry.width_m, fixture.rotation_deg)
+    hx, hy = rotated_half_extent_m(*footprint_size_m(fixture_type.geometry), fixture.rotation_deg)
     return fixture.x_m - hx, fixture.y_m - hy, fixture.x_m + hx, fixture.y_m + hy

@@ -189,6 +189,7 @@ class FixtureType(Strict):
     ppf_umol_s: float = Field(gt=0, le=20000, description="Photosynthetic photon flux at full power [µmol/s].")
     power_w: float = Field(gt=0, le=10000, description="Input power at full power [W].")
     weight_kg: float | None = Field(default=None, ge=0, le=500)
+    price: float | None = Field(default=None, ge=0, le=1_000_000, description="Price of one, in the room's currency.")
     notes: str = Field(default="", max_length=1000)
     hanging_points_m: list[tuple[Annotated[float, Field(ge=-2.5, le=2.5)], Annotated[float, Field(ge=-2.5, le=2.5)]]] | None = Field(
         default=None,
@@ -316,9 +317,18 @@ class PaybackPlan(Strict):
     horizon_years: int = Field(default=5, ge=1, le=30)
     discount_rate: float = Field(default=0.0, ge=0, le=0.5)
     match_light: bool = Field(default=True, description="Dim the new fixtures to the light the room has now.")
-    rated_hours_now: float = Field(default=50000.0, gt=0, le=1e6, description="Hours to 90 % output (L90), present.")
-    rated_hours_variant: float = Field(default=50000.0, gt=0, le=1e6, description="L90 hours of the new type.")
-    hours_run_now: float = Field(default=0.0, ge=0, le=1e6, description="Hours the present fixtures have run.")
+    rated_hours_now: float | None = Field(
+        default=None,
+        gt=0,
+        le=1e6,
+        description="L90 hours of the present fixtures; none: the type's maintenance record.",
+    )
+    rated_hours_variant: float | None = Field(
+        default=None, gt=0, le=1e6, description="L90 hours of the new type; none: its maintenance record."
+    )
+    hours_run_now: float | None = Field(
+        default=None, ge=0, le=1e6, description="Hours the present fixtures have run; none: the room's recorded age."
+    )
 
 
 class CanopyZone(Strict):
@@ -505,6 +515,12 @@ class Room(Strict):
         default=0.0254, ge=limits.MIN_GRID_SPACING_M, le=1.0, description="Canopy grid spacing (1 inch)."
     )
     display_units: DisplayUnits = "imperial"
+    dark_allowance: float | None = Field(
+        default=None,
+        ge=0,
+        le=0.5,
+        description="Share of a zone's area allowed below the DLI band (0-0.5); none: Leafcast's default 0.10.",
+    )
     entry: Entry = Field(default_factory=Entry, description="The door or entry drawn on the sheet's plan.")
     output_age: OutputAge = Field(default_factory=OutputAge)
     readings: list[ReadingSet] = Field(default_factory=list, max_length=limits.MAX_READING_SETS)

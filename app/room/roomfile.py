@@ -245,7 +245,7 @@ def _duplicates(prefix: str, ids: list[str]) -> list[Problem]:
     ]
 
 
-# The planner still imports the old name; the rule itself lives in app.room.layout.
+# Kept for callers of the old name; the rule itself lives in app.room.layout.
 fixture_half_extent_m = layout.rotated_half_extent_m
 
 
@@ -368,7 +368,13 @@ def reading_problems(room: Room) -> list[Problem]:
         at = f"room.readings[{i}]"
         z = zones.get(r.zone_id)
         if z is None:
-            p.append(Problem(f"{at}.zone_id", f"unknown zone '{r.zone_id}'; the room has {sorted(zones)}"))
+            p.append(
+                Problem(
+                    f"{at}.zone_id",
+                    f"unknown zone '{r.zone_id}'; the room has {sorted(zones)} "
+                    f"(delete reading set '{r.id}' on the meter page, or keep the zone)",
+                )
+            )
             continue
         x0, x1, y0, y1 = z.x_m - tol, z.x_m + z.width_m + tol, z.y_m - tol, z.y_m + z.length_m + tol
         if r.grid is not None:
@@ -382,7 +388,8 @@ def reading_problems(room: Room) -> list[Problem]:
                         f"{at}.grid",
                         f"the grid of {rows} rows x {cols} columns does not fit zone '{z.id}': it spans "
                         f"x {g.origin_x_m:.3g}-{far_x:.3g} m, y {g.origin_y_m:.3g}-{far_y:.3g} m, the zone "
-                        f"x {z.x_m:.3g}-{z.x_m + z.width_m:.3g} m, y {z.y_m:.3g}-{z.y_m + z.length_m:.3g} m",
+                        f"x {z.x_m:.3g}-{z.x_m + z.width_m:.3g} m, y {z.y_m:.3g}-{z.y_m + z.length_m:.3g} m "
+                        f"(fix reading set '{r.id}' on the meter page, or move the zone back)",
                     )
                 )
             if all(v is None for row in g.values for v in row):
@@ -393,7 +400,8 @@ def reading_problems(room: Room) -> list[Problem]:
                     Problem(
                         f"{at}.points[{j}]",
                         f"reading at ({pt.x_m:.3g}, {pt.y_m:.3g}) m is outside zone '{z.id}' "
-                        f"(x {z.x_m:.3g}-{z.x_m + z.width_m:.3g} m, y {z.y_m:.3g}-{z.y_m + z.length_m:.3g} m)",
+                        f"(x {z.x_m:.3g}-{z.x_m + z.width_m:.3g} m, y {z.y_m:.3g}-{z.y_m + z.length_m:.3g} m; "
+                        f"fix reading set '{r.id}' on the meter page, or move the zone back)",
                     )
                 )
     return p

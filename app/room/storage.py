@@ -20,6 +20,7 @@ write, to prove a crash at any point loses nothing.
 from __future__ import annotations
 
 import errno
+import json
 import logging
 import os
 import re
@@ -230,6 +231,85 @@ class RoomStore:
             except FileNotFoundError as exc:
                 raise RoomNotFound(room_id) from exc
             _fsync_dir(path.parent)
+
+    # -- the room list's actions: trash and restore, rename (old id kept as an alias), ------------
+    # -- duplicate is create() with a new name -----------------------------------------------------
+    @property
+    def trash_dir(self) -> Path:
+        return self.rooms_dir.parent / "trash"
+
+    def trash(self, room_id: str) -> None:
+        """Move a room to the trash (restorable); its previous revision is dropped."""
+        with self._lock:
+            path = self._path(room_id)
+            if not path.is_file():
+                raise RoomNotFound(room_id)
+            self.trash_dir.mkdir(exist_ok=True)
+            os.replace(path, self.trash_dir / path.name)
+            self._path(room_id, PREV_SUFFIX).unlink(missing_ok=True)
+            _fsync_dir(self.rooms_dir)
+
+    def trashed(self) -> list[RoomSummary]:
+        out = []
+        for path in sorted(self.trash_dir.glob(f"*{SUFFIX}")) if self.trash_dir.is_dir() else []:
+            try:
+                rf = parse_room_file(path.read_bytes(), strict_text=False)
+            except (RoomFileError, FileNotFoundError):
+                continue
+            out.append(RoomSummary(path.stem, rf.room.name, rf.revision, len(rf.room.fixtures), len(rf.room.zones)))
+        return out
+
+    def restore(self, room_id: str) -> str:
+        """Bring a room back from the trash; under a fresh id if its own was taken meanwhile."""
+        with self._lock:
+            if len(room_id) > MAX_ID_CHARS or not _ID_RE.fullmatch(room_id):
+                raise RoomNotFound(room_id)
+            src = self.trash_dir / f"{room_id}{SUFFIX}"
+            if not src.is_file():
+                raise RoomNotFound(room_id)
+            new_id = room_id if not self.exists(room_id) else self.unique_id(parse_room_file(src.read_bytes()).room.name)
+            os.replace(src, self._path(new_id))
+            _fsync_dir(self.rooms_dir)
+            return new_id
+
+    @property
+    def _aliases_path(self) -> Path:
+        return self.rooms_dir.parent / "renamed.json"
+
+    def renamed_to(self, room_id: str) -> str | None:
+        """The id a renamed room has now (following a chain of renames), or None."""
+        try:
+            aliases = json.loads(self._aliases_path.read_text(encoding="utf-8"))
+        except (FileNotFoundError, ValueError):
+            return None
+        seen, current = set(), room_id
+        while current in aliases and current not in seen:
+            seen.add(current)
+            current = aliases[current]
+        return current if current != room_id and self.exists(current) else None
+
+    def rename(self, room_id: str, name: str) -> tuple[str, RoomFile]:
+        """Give a room a new name; its id follows the name and the old id is remembered for redirects."""
+        with self._lock:
+            current = self.load(room_id)
+            stored = current.model_copy(
+                update={"revision": current.revision + 1, "room": current.room.model_copy(update={"name": name})}
+            )
+            new_id = room_id if slugify(name) == slugify(current.room.name) else self.unique_id(name)
+            self._write_atomic(self._path(new_id), to_json_bytes(dump_room_file(stored)))
+            if new_id != room_id:
+                try:
+                    aliases = json.loads(self._aliases_path.read_text(encoding="utf-8"))
+                except (FileNotFoundError, ValueError):
+                    aliases = {}
+                aliases = {k: v for k, v in aliases.items() if k != new_id} | {room_id: new_id}
+                tmp = self._aliases_path.with_suffix(".tmp")
+                tmp.write_text(json.dumps(aliases, indent=1), encoding="utf-8")
+                os.replace(tmp, self._aliases_path)
+                self._path(room_id, PREV_SUFFIX).unlink(missing_ok=True)
+                self._path(room_id).unlink(missing_ok=True)
+                _fsync_dir(self.rooms_dir)
+            return new_id, stored
 
     # -- start-up --------------------------------------------------------
     def recover(self, now: float | None = None) -> list[str]:

@@ -78,7 +78,7 @@ def format_length(m: float | None, system: str, fine: bool = False) -> str:
         whole = int(rest + 1e-9)
         text = f"{whole}{_EIGHTHS[round((rest - whole) * 8)]}"
         return f"{sign}{ft}′ {text}″" if ft else f"{sign}{text}″"
-    if abs(m) < 1:
+    if abs(round_half_away(_dec(m) * 100, 1)) < 100:  # on the rounded value: 0.99996 m is "1 m", not "100 cm"
         return f"{round_half_away(_dec(m) * 100, 1):g} cm"
     return f"{round_half_away(m, 3):g} m"
 

@@ -57,6 +57,7 @@ class CostEstimate:
     grid_points: int
     fixtures: int
     units: dict[str, float] = field(default_factory=dict)
+    footprints: int = 0  # distinct open-air footprints computed (identical fixtures share one)
 
     @property
     def main_term(self) -> str:
@@ -158,7 +159,7 @@ def estimate(room: Room) -> CostEstimate:
     units = dict.fromkeys(NS_PER, 0.0)
     covers = {g: covering_height_m(g, boxes) for g in grids}
     shared: set = set()
-    specular = enc.finish == "specular" and enc.reflectance > 0
+    specular = enc.has_specular
     for e in emitters:
         ref = reference_drop_m(e, grids, covers)
         for g in grids:
@@ -168,14 +169,14 @@ def estimate(room: Room) -> CostEstimate:
             if specular:
                 _image_terms(e, g, enc, units)
     points = sum(g.nx * g.ny for g in grids)
-    if enc.finish == "diffuse" and enc.reflectance > 0 and emitters:
+    if enc.has_diffuse and emitters:
         n_patches = len(rf.wall_patches(enc).areas)
         nodes = sum(_node_count(e, 0.5) for e in emitters)
         units["patch_evaluations"] += 4 * n_patches * nodes + n_patches**2 * (1 + len(boxes)) + 4 * n_patches * points
     units["points"] = float(points)
     seconds = FIXED_S + sum(units[k] * NS_PER[k] for k in units) * 1e-9
     memory = BYTES_FIXED + CHUNK_BYTES + BYTES_PER_POINT * points
-    return CostEstimate(seconds, int(memory), points, len(emitters), units)
+    return CostEstimate(seconds, int(memory), points, len(emitters), units, footprints=len(shared))
 
 
 ADVICE = {

@@ -47,6 +47,8 @@ class AnalysisRunner:
     budget_s: float = 20.0
     workers: int = 2
     memory_budget_bytes: int = DEFAULT_MEMORY_BUDGET_BYTES
+    in_process_below_s: float = IN_PROCESS_BELOW_S
+    start_allowance_s: float = CHILD_START_ALLOWANCE_S
 
     def __post_init__(self) -> None:
         self._slots = threading.BoundedSemaphore(self.workers)
@@ -54,8 +56,11 @@ class AnalysisRunner:
     def estimate(self, room_file: RoomFile) -> CostEstimate:
         return check_budget(room_file.room, self.budget_s, self.memory_budget_bytes)
 
-    def run(self, room_file: RoomFile, **kw: Any) -> dict[str, Any]:
-        """Analyse within the budget, or raise OverBudget / AnalysisTimeout / AnalysisMemory / SceneError."""
+    def run(self, room_file: RoomFile, abandon: threading.Event | None = None, **kw: Any) -> dict[str, Any]:
+        """Analyse within the budget, or raise OverBudget / AnalysisTimeout / AnalysisMemory / SceneError.
+
+        ``abandon`` set (the client went away) stops a heavy analysis at once.
+        """
         est = self.estimate(room_file)
         start = time.monotonic()
         if not self._slots.acquire(timeout=self.budget_s):
@@ -63,10 +68,10 @@ class AnalysisRunner:
                 f"the server is busy with {self.workers} other analyses; nothing was computed. Try again shortly."
             )
         try:
-            if est.seconds < IN_PROCESS_BELOW_S:
+            if est.seconds < min(self.in_process_below_s, 0.5 * self.budget_s):
                 return analyse(room_file, **kw)
-            remaining = self.budget_s - (time.monotonic() - start)
-            return _in_child(room_file, kw, remaining, est)
+            remaining = self.budget_s - (time.monotonic() - start) + self.start_allowance_s
+            return _in_child(room_file, kw, remaining, est, abandon)
         finally:
             self._slots.release()
 
@@ -91,7 +96,23 @@ def _child_main(conn, doc_json: bytes, kw: dict, address_space_bytes: int) -> No
         conn.close()
 
 
-def _in_child(room_file: RoomFile, kw: dict, remaining_s: float, est: CostEstimate) -> dict[str, Any]:
+POLL_S = 0.25  # how often a waiting analysis looks whether its client went away
+
+
+def _wait(parent, remaining_s: float, abandon: threading.Event | None) -> bool:
+    """True when the child answered in time; False when the time ran out or the client left."""
+    deadline = time.monotonic() + max(remaining_s, 0.0)
+    while True:
+        left = deadline - time.monotonic()
+        if parent.poll(max(min(left, POLL_S), 0.0)):
+            return True
+        if left <= 0 or (abandon is not None and abandon.is_set()):
+            return False
+
+
+def _in_child(
+    room_file: RoomFile, kw: dict, remaining_s: float, est: CostEstimate, abandon: threading.Event | None = None
+) -> dict[str, Any]:
     ctx = mp.get_context("spawn")  # never fork a threaded server
     parent, child = ctx.Pipe(duplex=False)
     from app.room.roomfile import dump_room_file, to_json_bytes
@@ -105,9 +126,11 @@ def _in_child(room_file: RoomFile, kw: dict, remaining_s: float, est: CostEstima
     proc.start()
     child.close()
     try:
-        if not parent.poll(max(remaining_s, 0.0) + CHILD_START_ALLOWANCE_S):
+        if not _wait(parent, remaining_s, abandon):
+            if abandon is not None and abandon.is_set():
+                raise AnalysisTimeout("the client went away; the analysis was stopped")
             raise AnalysisTimeout(
-                f"the analysis did not finish within the {remaining_s + CHILD_START_ALLOWANCE_S:.0f} s it had left "
+                f"the analysis did not finish within the {remaining_s:.1f} s it had left "
                 f"(estimated {est.seconds:.0f} s) and was stopped. Use a coarser map spacing, fewer fixtures or "
                 "a smaller zone, or start the server with a larger --max-analysis-s."
             )

@@ -4,8 +4,7 @@ from __future__ import annotations
 
 from typing import Any
 
-import numpy as np
-
+from app.engine import maintenance as mt
 from app.engine import payback as pb
 from app.engine import tariff as tf
 from app.room.library import fixture_library
@@ -13,9 +12,11 @@ from app.room.models import RoomFile
 from app.room.roomfile import RoomFileError, dump_room_file, parse_room_file
 from app.service.analysis import analyse
 from app.service.energy_price import effective_price_per_kwh, profile_for
+from app.service.maintained import projection_for
 
 DAYS_PER_YEAR = 365.0
-L_SHARE = 0.9  # the rated hours are L90: 90 % of the first output (IES TM-21 reports Lp life)
+L90_PERCENT = 90.0  # the rated hours asked for are L90: 90 % of the first output (IES TM-21 reports Lp life)
+ASSUMED_L90_H = 50_000.0  # when neither the grower nor the fixture type says (common practice, no source)
 
 
 def _variant_room(room_file: RoomFile, dimming_scale: float = 1.0) -> tuple[RoomFile, list[str]]:
@@ -67,6 +68,9 @@ def payback_report(room_file: RoomFile) -> dict[str, Any] | None:
     plan = room_file.room.payback
     if plan is None:
         return None
+    # Both rooms are analysed as new and clean; age and dirt are applied year by year below.
+    age = room_file.room.output_age.model_copy(update={"shown_at": "installation"})
+    room_file = room_file.model_copy(update={"room": room_file.room.model_copy(update={"output_age": age})})
     now_result = analyse(room_file, include_grids=False)
     try:
         variant, replaced = _variant_room(room_file)
@@ -88,20 +92,20 @@ def payback_report(room_file: RoomFile) -> dict[str, Any] | None:
         return {"problem": f"the variant is not a valid room: {exc}"}
     now, var = _yearly(room_file, now_result), _yearly(variant, var_result)
     years = plan.horizon_years
-    a_now = pb.decay_per_hour(plan.rated_hours_now, L_SHARE)
-    a_var = pb.decay_per_hour(plan.rated_hours_variant, L_SHARE)
+    room = room_file.room
+    types = {t.id: t for t in variant.room.fixture_types}
+    old_ids = {f.type_id for f in room.fixtures if f.id in set(replaced)}
+    old_type = types[old_ids.pop()] if len(old_ids) == 1 else None
+    proj_now = _projection(plan.rated_hours_now, old_type)
+    proj_var = _projection(plan.rated_hours_variant, types[plan.variant_type_id])
+    run = plan.hours_run_now if plan.hours_run_now is not None else (room.output_age.hours_in_service_h or 0.0)
     h_now, h_var = now["hours_per_day"] * DAYS_PER_YEAR, var["hours_per_day"] * DAYS_PER_YEAR
-    # The present fixtures have aged already: start their curve at the hours they have run.
-    share_now = pb.mean_maintained_share(
-        a_now,
-        plan.hours_run_now + h_now * np.arange(years),
-        plan.hours_run_now + h_now * (np.arange(years) + 1),
-    )
-    mol_now = now["mol_year_first"] * share_now
-    mol_var = pb.yearly_photons_mol(var["mol_year_first"], h_var, years, a_var)
+    dirt = room.output_age.dirt_factor  # the same dust on either fixture
+    # The present fixtures have aged already: their curve starts at the hours they have run.
+    mol_now = now["mol_year_first"] * dirt * pb.yearly_mean_share(proj_now.maintenance, run, h_now, years)
+    mol_var = var["mol_year_first"] * dirt * pb.yearly_mean_share(proj_var.maintenance, 0.0, h_var, years)
     purchase = plan.price_per_fixture * len(replaced) + plan.install_cost
     result = pb.payback(purchase, now["cost_year"], var["cost_year"], years, plan.discount_rate)
-    types = {t.id: t for t in variant.room.fixture_types}
     return {
         "problem": None,
         "variant_type_name": types[plan.variant_type_id].name,
@@ -118,12 +122,26 @@ def payback_report(room_file: RoomFile) -> dict[str, Any] | None:
             "cost_per_mol": pb.cost_per_mol(purchase, [var["cost_year"]] * years, mol_var),
             "dimming_pct": sorted({f.dimming_pct for f in variant.room.fixtures if f.id in replaced}),
         },
+        "maintenance_now": proj_now.source,
+        "maintenance_variant": proj_var.source,
+        "hours_run_now": run,
         "match_light": plan.match_light,
         "horizon_years": years,
         "discount_rate": plan.discount_rate,
         **result,
         "currency": room_file.room.schedule.currency,
     }
+
+
+def _projection(rated_l90_h: float | None, fixture_type) -> mt.Projection:
+    """The grower's L90 for the comparison, else the type's own maintenance record, else an assumed L90."""
+    if rated_l90_h is not None:
+        return mt.from_rated_point(L90_PERCENT, rated_l90_h)
+    recorded = projection_for(fixture_type) if fixture_type is not None else None
+    if recorded is not None:
+        return recorded
+    p = mt.from_rated_point(L90_PERCENT, ASSUMED_L90_H)
+    return mt.Projection(p.b, p.alpha_per_h, p.limit_h, p.source + " (assumed: no maintenance recorded)")
 
 
 def _without(room_file: RoomFile, fixture_ids: list[str]) -> RoomFile:

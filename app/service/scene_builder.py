@@ -9,6 +9,7 @@ from dataclasses import dataclass
 from app.engine import distributions as dist
 from app.engine.cache import MIB, BoundedCache
 from app.engine.scene import Box, Emitter, Enclosure, Grid
+from app.room import layout
 from app.room.models import SURFACES, Beam, CanopyZone, FixtureType, Room
 from app.service.maintained import output_factors
 
@@ -58,7 +59,7 @@ def emitter_for(
         distribution=distribution_for(t.beam),
         shape=g.kind,
         length_m=g.length_m,
-        width_m=g.bar_width_m if g.kind == "bar" else g.width_m,
+        width_m=layout.footprint_size_m(g)[1],
         bar_count=g.bar_count,
         bar_width_m=g.bar_width_m,
         rotation_deg=rotation_deg,

@@ -12,28 +12,17 @@ from html import escape
 
 from app.room.models import Room
 from app.room.units import M_PER_FT, M_PER_IN, format_length
-from app.service.sheet_geometry import Tier, chain, entry_span, fixture_shape
-from app.service.sheet_labels import (
-    FONT,
-    PT_MM,
-    Box,
-    Occupancy,
-    nearest_point_on_box,
-    text_box,
-    text_width_mm,
-)
+from app.service.sheet_dimensions import dimensions
+from app.service.sheet_geometry import Tier, entry_span, fixture_shape
+from app.service.sheet_labels import FONT, Box, nearest_point_on_box, text_width_mm
+from app.service.sheet_svg import ID_MM, INK, TAG_MM, TEXT_MM, ZONE_INK, Svg, rot_box
 
-TEXT_MM = 7.5 * PT_MM  # dimension numbers, zone labels, legend
-ID_MM = 10 * PT_MM  # fixture ids
-TAG_MM = 7.5 * PT_MM  # circuit tags
-ROW1_MM, ROW2_MM = 7.0, 16.0  # chained and overall dimension lines, out from the wall
 MARGIN_MM = {"left": 24.0, "right": 6.0, "top": 10.0, "bottom": 36.0}  # room for dimensions, footer
 # Drawing scales a tape measure and a scale rule know: architectural (imperial) and metric ratios.
 IMPERIAL_SCALES = [(4, "3″ = 1′"), (8, "1½″ = 1′"), (12, "1″ = 1′"), (16, "¾″ = 1′"), (24, "½″ = 1′"),
                    (32, "⅜″ = 1′"), (48, "¼″ = 1′"), (96, "⅛″ = 1′"), (192, "1/16″ = 1′")]  # fmt: skip
 METRIC_SCALES = [(5, ""), (10, ""), (20, ""), (25, ""), (30, ""), (40, ""), (50, ""), (75, ""), (100, ""), (200, ""), (500, "")]
 CIRCUIT_DASHES = ["", "2.4 1.2", "0.7 0.9", "3 1 0.7 1", "5 1.5", "1.4 1.4"]
-INK, DIM_INK, ZONE_INK = "#1a1a1a", "#1d3f8f", "#2f5a39"
 
 
 @dataclass(frozen=True)
@@ -72,39 +61,6 @@ def scale_bar_length_m(scale: Scale, units: str, target_mm: float = 40.0) -> tup
     return min(options, key=lambda o: abs(o[0] * scale.mm_per_m - target_mm))
 
 
-class _Svg:
-    def __init__(self) -> None:
-        self.parts: list[str] = []
-        self.occ = Occupancy()
-
-    def add(self, s: str) -> None:
-        self.parts.append(s)
-
-    def line(self, p, q, cls: str, stroke=INK, width=0.25, dash="", owner="", register=True) -> None:
-        d = f' stroke-dasharray="{dash}"' if dash else ""
-        o = f' data-owner="{escape(owner)}"' if owner else ""
-        self.add(
-            f'<line class="{cls}"{o} x1="{p[0]:.2f}" y1="{p[1]:.2f}" x2="{q[0]:.2f}" y2="{q[1]:.2f}" '
-            f'stroke="{stroke}" stroke-width="{width}"{d}/>'
-        )
-        if register:
-            self.occ.add_line(p, q, owner, width)
-
-    def text(self, x, y, s, size, cls, anchor="middle", bold=False, fill=INK, rotate=False, extra="", register=True):
-        w = " font-weight=\"700\"" if bold else ""
-        t = f' transform="rotate(-90 {x:.2f} {y:.2f})"' if rotate else ""
-        self.add(
-            f'<text class="{cls}" x="{x:.2f}" y="{y:.2f}" font-size="{size:.3f}" text-anchor="{anchor}" '
-            f'fill="{fill}"{w}{t}{extra}>{escape(s)}</text>'
-        )
-        b = text_box(x, y, s, size, anchor, bold)
-        if rotate:  # turned a quarter counter-clockwise about (x, y)
-            b = Box(x + (b.y0 - y), y - (b.x1 - x), x + (b.y1 - y), y - (b.x0 - x))
-        if register:
-            self.occ.add_box(b)
-        return b
-
-
 def plan_svg(room: Room, tier: Tier, scale: Scale, circuits: list[str]) -> tuple[str, float, float]:
     """One tier's plan: walls, entry, zones, fixtures with bars and hanging points, ids, dimensions, scale bar."""
     units = room.display_units
@@ -115,7 +71,7 @@ def plan_svg(room: Room, tier: Tier, scale: Scale, circuits: list[str]) -> tuple
     def P(x: float, y: float) -> tuple[float, float]:
         return ox + x * k, oy + (L - y) * k
 
-    s = _Svg()
+    s = Svg()
     s.add(f'<rect class="sp-area sp-floor" x="{ox:.2f}" y="{oy:.2f}" width="{W * k:.2f}" height="{L * k:.2f}" fill="#fff"/>')
     for z in tier.zones:
         x0, y0 = P(z.x_m, z.y_m + z.length_m)
@@ -132,7 +88,7 @@ def plan_svg(room: Room, tier: Tier, scale: Scale, circuits: list[str]) -> tuple
     shapes = [fixture_shape(room, f) for f in tier.fixtures]
     for sh in shapes:
         _fixture_body(s, sh, P, circuits)
-    _dimensions(s, room, tier, P, units)
+    dimensions(s, room, tier, P, units)
     for sh in shapes:
         _fixture_label(s, sh, P, circuits, k)
     _zone_labels(s, tier, P, units)
@@ -156,7 +112,7 @@ def _on_wall(a, b, lo, hi) -> bool:
     )
 
 
-def _walls(s: _Svg, room: Room, P) -> None:
+def _walls(s: Svg, room: Room, P) -> None:
     W, L = room.width_m, room.length_m
     side, a, b = entry_span(room)
     ends = {"front": ((0, 0), (W, 0)), "back": ((0, L), (W, L)), "left": ((0, 0), (0, L)), "right": ((W, 0), (W, L))}
@@ -198,7 +154,7 @@ def _poly(points, cls, fill, stroke, width, dash="", owner="") -> str:
     )
 
 
-def _fixture_body(s: _Svg, sh, P, circuits: list[str]) -> None:
+def _fixture_body(s: Svg, sh, P, circuits: list[str]) -> None:
     f = sh.fixture
     dash = CIRCUIT_DASHES[circuits.index(f.circuit) % len(CIRCUIT_DASHES)] if f.circuit in circuits else ""
     fill = "#ffe9a8" if f.on else "#e4e4e4"
@@ -249,7 +205,7 @@ def _label_candidates(c, body: Box, w: float, h: float) -> list[tuple[float, flo
     return out
 
 
-def _fixture_label(s: _Svg, sh, P, circuits: list[str], k: float) -> None:
+def _fixture_label(s: Svg, sh, P, circuits: list[str], k: float) -> None:
     """The id (and its circuit tag) on the fixture when it fits there, else beside it with a leader line."""
     f = sh.fixture
     c = P(f.x_m, f.y_m)
@@ -282,7 +238,7 @@ def _fixture_label(s: _Svg, sh, P, circuits: list[str], k: float) -> None:
     _draw_label(s, f, box, leader, end, stacked, c)
 
 
-def _draw_label(s: _Svg, f, box: Box, leader: bool, end, stacked: bool, c) -> None:
+def _draw_label(s: Svg, f, box: Box, leader: bool, end, stacked: bool, c) -> None:
     o = escape(f.id)
     w, h = box.x1 - box.x0, box.y1 - box.y0
     s.add(f'<g class="sp-label" data-owner="{o}">')
@@ -308,74 +264,7 @@ def _draw_label(s: _Svg, f, box: Box, leader: bool, end, stacked: bool, c) -> No
     s.occ.add_box(box, f.id)
 
 
-def _dim_row(s: _Svg, segments, along_x: bool, offset: float, P, units: str, cls: str) -> None:
-    """A chain of dimensions on a line ``offset`` mm outside the front (along_x) or left wall."""
-    if not segments:
-        return
-    stops = [segments[0][0]] + [b for _, b in segments]
-
-    def at(v: float) -> tuple[float, float]:
-        p = P(v, 0) if along_x else P(0, v)
-        return (p[0], p[1] + offset) if along_x else (p[0] - offset, p[1])
-
-    wall = (lambda v: (P(v, 0)[0], P(v, 0)[1] + 1.0)) if along_x else (lambda v: (P(0, v)[0] - 1.0, P(0, v)[1]))
-    s.line(at(stops[0]), at(stops[-1]), cls + " sp-dim-line", stroke=DIM_INK, width=0.2)
-    for v in stops:
-        a, b = wall(v), at(v)
-        b2 = (b[0], b[1] + 1.2) if along_x else (b[0] - 1.2, b[1])
-        s.line(a, b2, "sp-dim-ext", stroke=DIM_INK, width=0.15)
-        m = at(v)
-        # The tick sits on the dimension line, which is already kept clear.
-        s.line((m[0] - 1.0, m[1] + 1.0), (m[0] + 1.0, m[1] - 1.0), "sp-dim-tick", stroke=DIM_INK, width=0.35, register=False)
-    for a, b in segments:
-        _dim_text(s, at(a), at(b), b - a, along_x, units)
-
-
-def _dim_text(s: _Svg, pa, pb, length_m: float, along_x: bool, units: str) -> None:
-    text = format_length(length_m, units, fine=True)
-    w = text_width_mm(text, TEXT_MM)
-    gap = abs(pb[0] - pa[0]) if along_x else abs(pb[1] - pa[1])
-    mid = ((pa[0] + pb[0]) / 2, (pa[1] + pb[1]) / 2)
-    extra = f' data-length-m="{length_m:.6f}"'
-    cands = []
-    # In the gap when it fits; else beside the far end, then the near end, one row further out.
-    if along_x:
-        if w + 2.2 < gap:
-            cands += [(mid[0], mid[1] - 0.9, False), (mid[0], mid[1] + 0.9 + 0.95 * TEXT_MM, False)]
-        for dy in (-0.9, 0.9 + 0.95 * TEXT_MM, 4.5):
-            cands += [(max(pa[0], pb[0]) + 1.2 + w / 2, mid[1] + dy, True), (min(pa[0], pb[0]) - 1.2 - w / 2, mid[1] + dy, True)]
-    else:
-        if w + 2.2 < gap:
-            cands += [(mid[0] - 0.9, mid[1], False), (mid[0] + 0.9 + 0.95 * TEXT_MM, mid[1], False)]
-        for dx in (-0.9, 0.9 + 0.95 * TEXT_MM, -4.5):
-            cands += [(mid[0] + dx, min(pa[1], pb[1]) - 1.2 - w / 2, True), (mid[0] + dx, max(pa[1], pb[1]) + 1.2 + w / 2, True)]
-    for x, y, _leader in cands:
-        b = _rot_box(x, y, text, along_x)
-        if s.occ.free(b, gap=0.15):
-            s.text(x, y, text, TEXT_MM, "sp-dim-text", rotate=not along_x, fill=DIM_INK, extra=extra)
-            return
-    x, y, _ = cands[-1]
-    s.text(x, y, text, TEXT_MM, "sp-dim-text", rotate=not along_x, fill=DIM_INK, extra=extra)
-
-
-def _rot_box(x, y, text, along_x) -> Box:
-    b = text_box(x, y, text, TEXT_MM)
-    if along_x:
-        return b
-    return Box(x + (b.y0 - y), y - (b.x1 - x), x + (b.y1 - y), y - (b.x0 - x))
-
-
-def _dimensions(s: _Svg, room: Room, tier: Tier, P, units: str) -> None:
-    xs = [f.x_m for f in tier.fixtures]
-    ys = [f.y_m for f in tier.fixtures]
-    if xs:
-        _dim_row(s, chain(xs, room.width_m), True, ROW1_MM, P, units, "sp-dim-chain-x")
-        _dim_row(s, chain(ys, room.length_m), False, ROW1_MM, P, units, "sp-dim-chain-y")
-    _dim_row(s, [(0.0, room.width_m)], True, ROW2_MM, P, units, "sp-dim-overall-x")
-    _dim_row(s, [(0.0, room.length_m)], False, ROW2_MM, P, units, "sp-dim-overall-y")
-
-
-def _zone_labels(s: _Svg, tier: Tier, P, units: str) -> None:
+def _zone_labels(s: Svg, tier: Tier, P, units: str) -> None:
     for z in tier.zones:
         lines = [z.name, f"canopy {format_length(z.canopy_height_m, units, True)}"]
         w = max(text_width_mm(t, TEXT_MM) for t in lines) + 1.0
@@ -402,7 +291,7 @@ def _zone_labels(s: _Svg, tier: Tier, P, units: str) -> None:
         s.occ.add_box(Box(x, y, x + w, y + h))
 
 
-def _entry_label(s: _Svg, room: Room, P) -> None:
+def _entry_label(s: Svg, room: Room, P) -> None:
     side, a, b = entry_span(room)
     text = f"{room.entry.label} ({side} wall)"
     m = (a + b) / 2
@@ -421,13 +310,13 @@ def _entry_label(s: _Svg, room: Room, P) -> None:
                  (outer - 1.2 if side == "left" else outer + 1.2 + TEXT_MM, p[1])]  # fmt: skip
         rotate = True
     for x, y in cands:
-        bx = _rot_box(x, y, text, not rotate)
+        bx = rot_box(x, y, text, not rotate)
         if s.occ.free(bx):
             break
     s.text(x, y, text, TEXT_MM, "sp-entry-label", rotate=rotate, bold=True)
 
 
-def _footer(s: _Svg, room: Room, tier: Tier, scale: Scale, circuits: list[str], bounds: Box, units: str) -> None:
+def _footer(s: Svg, room: Room, tier: Tier, scale: Scale, circuits: list[str], bounds: Box, units: str) -> None:
     """Scale bar with its ratio, and the circuit legend, under the drawing."""
     room_mm = room.width_m * scale.mm_per_m
     length_m, label, parts = scale_bar_length_m(scale, units, target_mm=min(40.0, max(20.0, room_mm + 12)))

@@ -26,9 +26,37 @@ from app.settings import Settings
 from app.web.errors import install_error_handlers
 from app.web.guards import CrossSiteGuard, SecurityHeaders
 from app.web.middleware import BodyLimit, LocalOnly
-from app.web.routes import analysis, docs, library, meter, pages, photometry, planner, rooms, sheet, year
+from app.web.routes import (
+    analysis,
+    docs,
+    fixture_types,
+    footprints,
+    library,
+    meter,
+    pages,
+    photometry,
+    planner,
+    rooms,
+    sheet,
+    variants,
+    year,
+)
 
-ROUTERS = (pages, rooms, analysis, planner, photometry, library, meter, year, sheet, docs)
+ROUTERS = (
+    pages,
+    rooms,
+    analysis,
+    planner,
+    photometry,
+    library,
+    meter,
+    year,
+    sheet,
+    docs,
+    footprints,
+    fixture_types,
+    variants,
+)
 
 
 def create_app(settings: Settings | None = None) -> FastAPI:

@@ -55,10 +55,17 @@ class MapFitIn(ApiIn):
 class PlanIn(ApiIn):
     type_ids: list[str] = Field(default_factory=list, max_length=20, description="Candidate fixture types")
     objective: str = Field(
-        default="power", pattern="^(power|count)$", description="Least input power, or fewest fixtures"
+        default="power",
+        pattern="^(power|count|cost)$",
+        description="Least input power, fewest fixtures, or least cost (fixtures + electricity over `years`)",
     )
+    target: str = Field(default="bottom", pattern="^(bottom|middle)$", description="Dim to the band's bottom or middle")
     max_power_w: float | None = Field(default=None, gt=0, le=1e7, description="Power budget for the whole room [W]")
     min_clearance_m: float = Field(default=0.15, ge=0.02, le=3, description="Least height above the canopy [m]")
+    min_gap_m: float = Field(
+        default=0.10, ge=0, le=1, description="Least gap between fixtures and to closed walls [m]"
+    )
+    years: float = Field(default=3.0, gt=0, le=30, description="Horizon of the cost objective [years]")
     seed: int = Field(default=0, ge=0, le=2**31)
 
 

@@ -53,11 +53,14 @@ def over_budget(exc: OverBudget) -> ApiError:
     return ApiError(422, "too_much_work", str(exc), estimate=exc.estimate.as_dict())
 
 
-def analysed(room_file: RoomFile, *, request: Request | None = None, **kw) -> dict[str, Any]:
-    """The analysis, estimated and bounded by the app's runner when there is a request (else computed here)."""
+def analysed(room_file: RoomFile, *, request: Request | None = None, abandon=None, **kw) -> dict[str, Any]:
+    """The analysis, estimated and bounded by the app's runner when there is a request (else computed here).
+
+    ``abandon`` (a threading.Event) set while a heavy analysis runs stops it: the client went away.
+    """
     runner = runner_of(request) if request is not None else None
     try:
-        return runner.run(room_file, **kw) if runner is not None else analyse(room_file, **kw)
+        return runner.run(room_file, abandon=abandon, **kw) if runner is not None else analyse(room_file, **kw)
     except SceneError as exc:
         raise ApiError(422, "bad_geometry", str(exc)) from exc
     except OverBudget as exc:

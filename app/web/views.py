@@ -3,10 +3,11 @@
 from __future__ import annotations
 
 import datetime as dt
+import math
 from typing import Any
 
 from app import __version__
-from app.room.library import crops_for, fixture_library
+from app.room.library import crop_library, crops_for, fixture_library
 from app.room.models import WALL_FINISHES, RoomFile
 from app.room.roomfile import dump_room_file
 from app.room.storage import RoomStore
@@ -14,10 +15,21 @@ from app.room.units import format_length
 from app.service import sheet_data
 from app.service.colours import colour_scale
 from app.service.meter import sheet_summary as meter_sheet_summary
+from app.service.verdict import allowance_info
 
 
 def room_list(store: RoomStore) -> dict[str, Any]:
-    return {"title": "Rooms", "rooms": [s.__dict__ for s in store.list()], "version": __version__}
+    """The room list, and what the new-room dialog offers (crops with their stages, library fixture types)."""
+    return {
+        "title": "Rooms",
+        "rooms": [s.__dict__ for s in store.list()],
+        "crops": [
+            {"id": c.id, "name": c.name, "daylength": c.daylength, "stages": list(c.stages)}
+            for c in crop_library().values()
+        ],
+        "fixture_library": [t.model_dump(mode="json") for t in fixture_library().values()],
+        "version": __version__,
+    }
 
 
 def editor(room_id: str, room_file: RoomFile, analysis: dict[str, Any]) -> dict[str, Any]:
@@ -89,6 +101,7 @@ def planner(room_id: str, room_file: RoomFile) -> dict[str, Any]:
                     "name": t.name,
                     "ppf_umol_s": t.ppf_umol_s,
                     "power_w": t.power_w,
+                    "price": t.price,
                     "in_room": any(f.type_id == t.id for f in room.fixtures),
                 }
             )
@@ -98,5 +111,50 @@ def planner(room_id: str, room_file: RoomFile) -> dict[str, Any]:
         "room_file": dump_room_file(room_file),
         "fixture_types": types,
         "zones": [{"id": z.id, "name": z.name} for z in room.zones],
+        "verdict": allowance_info(room),
+        "currency": room.schedule.currency,
+        "version": __version__,
+    }
+
+
+# Step of the compare page's contour lines and range rounding: multiples of 5, 10, 25, 50 or 100 µmol m⁻² s⁻¹.
+_PPFD_STEPS = (5, 10, 25, 50, 100, 250, 500)
+
+
+def compare(rooms: list[tuple[str, RoomFile, dict[str, Any]]]) -> dict[str, Any]:
+    """Two rooms (or variants) side by side: per-zone figures, energy, cost, heat; both maps on one colour range."""
+    top = max((z["target"]["ppfd_stress"] for _, _, a in rooms for z in a["zones"]), default=1000.0)
+    step = next((s for s in _PPFD_STEPS if top / s <= 8), _PPFD_STEPS[-1])
+    columns = []
+    for room_id, rf, a in rooms:
+        columns.append(
+            {
+                "id": room_id,
+                "name": rf.room.name,
+                "revision": rf.revision,
+                "units": rf.room.display_units,
+                "zones": [
+                    {
+                        "name": z["name"],
+                        "crop": f"{z['crop_name']}, {z['stage']}",
+                        "ppfd": z["ppfd"],
+                        "dli": z["dli"],
+                        "target": z["target"],
+                        "share_in_band": z["share_in_band"],
+                        "dark_m2": z["dark"]["area_m2"],
+                        "hot_m2": z["hot"]["area_m2"],
+                        "grid": {k: z["grid"][k] for k in ("x_m", "y_m", "ppfd")} if z.get("grid") else None,
+                    }
+                    for z in a["zones"]
+                ],
+                "energy": a["energy"],
+                "heat": a["heat"],
+            }
+        )
+    return {
+        "title": f"Compare: {columns[0]['name']} and {columns[1]['name']}",
+        "rooms": columns,
+        "range": {"zmin": 0, "zmax": step * math.ceil(top / step), "step": step},
+        "colour_scale": colour_scale(),
         "version": __version__,
     }

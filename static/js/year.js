@@ -23,7 +23,7 @@
   function banner(html) { const b = $("banner"); b.innerHTML = html; b.hidden = !html; }
 
   // ------------------------------------------------------------ saving and undo
-  async function save(mutate, what) {
+  async function save(mutate, what, { record = true, onSaved = null } = {}) {
     const before = JSON.parse(JSON.stringify(doc));
     const next = JSON.parse(JSON.stringify(doc));
     try { mutate(next); } catch (e) { banner(`<p>${esc(e.message)}</p>`); return; }
@@ -31,9 +31,12 @@
     const res = await fetch(`/api/rooms/${page.room_id}`, { method: "PUT", headers: { "Content-Type": "application/json" }, body: JSON.stringify(next) });
     const body = await res.json().catch(() => ({ message: res.statusText }));
     if (res.ok) {
-      const stack = JSON.parse(sessionStorage.getItem(undoKey) || "[]");
-      stack.push({ what, doc: before });
-      sessionStorage.setItem(undoKey, JSON.stringify(stack.slice(-20)));
+      if (record) {
+        const stack = JSON.parse(sessionStorage.getItem(undoKey) || "[]");
+        stack.push({ what, doc: before });
+        sessionStorage.setItem(undoKey, JSON.stringify(stack.slice(-20)));
+      }
+      if (onSaved) onSaved();
       location.reload();
     } else if (res.status === 409) {
       banner(`<p>${esc(body.message)}</p><button type="button" onclick="location.reload()">Reload the room</button>`);
@@ -48,11 +51,9 @@
     const stack = JSON.parse(sessionStorage.getItem(undoKey) || "[]");
     const last = stack.pop();
     if (!last) return;
-    sessionStorage.setItem(undoKey, JSON.stringify(stack));
-    save((d) => { Object.assign(d, last.doc, { revision: doc.revision }); }, `undo of ${last.what}`).then(() => {
-      // The undo itself must not be undone into a loop: drop the entry save() just pushed.
-      const s = JSON.parse(sessionStorage.getItem(undoKey) || "[]"); s.pop(); sessionStorage.setItem(undoKey, JSON.stringify(s));
-    });
+    // Taken off the stack only once the older version is saved (a refused undo stays available).
+    save((d) => { Object.assign(d, last.doc, { revision: doc.revision }); }, `undo of ${last.what}`,
+      { record: false, onSaved: () => sessionStorage.setItem(undoKey, JSON.stringify(stack)) });
   });
 
   function num(input, label, { min = -Infinity, max = Infinity, blank = false } = {}) {

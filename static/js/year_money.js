@@ -77,7 +77,7 @@ window.LeafcastPayback = function (page, h) {
     $("payback-form").innerHTML = `<button type="button" id="payback-new">Compare a replacement fixture</button>`;
     $("payback-new").addEventListener("click", () => save((d) => {
       const other = page.fixture_types.find((t) => !roomTypes.some((r) => r.id === t.id)) || page.fixture_types[0];
-      d.room.payback = { variant_type_id: other.id, replace_type_id: null, price_per_fixture: 300, install_cost: 0, horizon_years: 5, discount_rate: 0, match_light: true, rated_hours_now: 50000, rated_hours_variant: 50000, hours_run_now: 0 };
+      d.room.payback = { variant_type_id: other.id, replace_type_id: null, price_per_fixture: 300, install_cost: 0, horizon_years: 5, discount_rate: 0, match_light: true, rated_hours_now: null, rated_hours_variant: null, hours_run_now: null };
     }, "a replacement to compare"));
     return;
   }
@@ -90,17 +90,17 @@ window.LeafcastPayback = function (page, h) {
     <label for="pb-years">Horizon (years)</label><input id="pb-years" type="number" min="1" max="30" value="${plan.horizon_years}">
     <label for="pb-rate">Discount rate (% a year)</label><input id="pb-rate" type="number" min="0" max="50" step="0.5" value="${plan.discount_rate * 100}">
     <label for="pb-match">Dim the new fixtures to today's light</label><input id="pb-match" type="checkbox" ${plan.match_light ? "checked" : ""}>
-    <label for="pb-lnow">Hours to 90 % output, present fixtures</label><input id="pb-lnow" type="number" min="1" value="${plan.rated_hours_now}">
-    <label for="pb-lvar">Hours to 90 % output, new fixtures</label><input id="pb-lvar" type="number" min="1" value="${plan.rated_hours_variant}">
-    <label for="pb-run">Hours the present fixtures have run</label><input id="pb-run" type="number" min="0" value="${plan.hours_run_now}"></div>
+    <label for="pb-lnow">Hours to 90 % output, present fixtures (blank: the type's record)</label><input id="pb-lnow" type="number" min="1" value="${plan.rated_hours_now ?? ""}">
+    <label for="pb-lvar">Hours to 90 % output, new fixtures (blank: the type's record)</label><input id="pb-lvar" type="number" min="1" value="${plan.rated_hours_variant ?? ""}">
+    <label for="pb-run">Hours the present fixtures have run (blank: the room's recorded age)</label><input id="pb-run" type="number" min="0" value="${plan.hours_run_now ?? ""}"></div>
     <div class="row"><button type="button" id="pb-save">Save and compare</button><button type="button" id="pb-drop">Remove the comparison</button></div>`;
   $("pb-drop").addEventListener("click", () => save((d) => { d.room.payback = null; }, "removing the comparison"));
   $("pb-save").addEventListener("click", () => save((d) => {
     d.room.payback = { variant_type_id: $("pb-variant").value, replace_type_id: $("pb-replace").value || null,
       price_per_fixture: num($("pb-price"), "price per fixture", { min: 0 }), install_cost: num($("pb-install"), "installation", { min: 0 }),
       horizon_years: num($("pb-years"), "horizon", { min: 1, max: 30 }), discount_rate: num($("pb-rate"), "discount rate", { min: 0, max: 50 }) / 100,
-      match_light: $("pb-match").checked, rated_hours_now: num($("pb-lnow"), "hours to 90 % (present)", { min: 1 }),
-      rated_hours_variant: num($("pb-lvar"), "hours to 90 % (new)", { min: 1 }), hours_run_now: num($("pb-run"), "hours run", { min: 0 }) };
+      match_light: $("pb-match").checked, rated_hours_now: num($("pb-lnow"), "hours to 90 % (present)", { min: 1, blank: true }),
+      rated_hours_variant: num($("pb-lvar"), "hours to 90 % (new)", { min: 1, blank: true }), hours_run_now: num($("pb-run"), "hours run", { min: 0, blank: true }) };
   }, "the comparison"));
   const r = page.payback;
   if (!r || r.problem) { $("payback-table").innerHTML = r ? `<p class="bad">${esc(r.problem)}</p>` : ""; return; }
@@ -117,5 +117,6 @@ window.LeafcastPayback = function (page, h) {
       ["Running cost a year", `${fmt(n.cost_year, 2)} ${esc(cur)}`, `${fmt(v.cost_year, 2)} ${esc(cur)}`],
       [`Photons over ${r.horizon_years} years (with ageing)`, `${fmt(sum(n.mol_by_year))} mol`, `${fmt(sum(v.mol_by_year))} mol`],
       ["Cost per 100 mol (purchase included)", `${fmt(n.cost_per_mol * 100, 3)} ${esc(cur)}`, `${fmt(v.cost_per_mol * 100, 3)} ${esc(cur)}`],
+      ["Output over the years", esc(r.maintenance_now) + ` (from ${fmt(r.hours_run_now)} h run)`, esc(r.maintenance_variant)],
     ].map((row) => `<tr>${row.map((c) => `<td>${c}</td>`).join("")}</tr>`));
 };

@@ -33,9 +33,9 @@ def wait_saved(page, revision_above: int, timeout_ms: int = 15000) -> int:
 
 
 def wait_analysis_idle(page) -> None:
+    """Ready, no analysis in flight or queued, and the last answer painted (figures and map)."""
     page.wait_for_timeout(150)
-    page.wait_for_function("() => window.leafcast && window.leafcast.ready")
-    page.wait_for_load_state("networkidle")
+    page.wait_for_function("() => window.leafcast && window.leafcast.ready && !window.leafcast.analysing")
 
 
 def drag_fixture(page, fixture_id: str, dx_px: float, dy_px: float, steps: int = 12) -> None:

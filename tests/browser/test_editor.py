@@ -1,6 +1,7 @@
 """The editor in a real Chromium against a real uvicorn: drag, undo, units, bad files, conflicts."""
 
 import json
+import re
 
 import pytest
 from numpy.testing import assert_allclose
@@ -59,14 +60,21 @@ def test_unit_switch_changes_what_is_shown_not_the_file(live_server, page, artif
     page.locator('[data-fixture-id="F1"]').click()
     inches = page.locator("#f-x").input_value()
     room_w_imperial = page.locator("#r-w").input_value()
+    x_m = before["room"]["fixtures"][0]["x_m"]
+    # Feet and inches to the eighth, as typed: 1' 0 3/8" or 8 1/2".
+    assert re.fullmatch(r"(\d+' )?\d+( \d/\d)?\"|(\d+' )?\d/\d\"", inches), inches
     page.locator("input[name=units][value=metric]").check()
     cm = page.locator("#f-x").input_value()
-    assert_allclose(float(cm), float(inches) * 2.54, rtol=1e-3)
+    assert cm.endswith(" cm") and abs(float(cm.split()[0]) - 100 * x_m) <= 0.05, (cm, x_m)
     assert page.locator("#r-w").input_value() != room_w_imperial
     assert "cm" in page.locator("#plan").inner_html() or " m" in page.locator("#plan").inner_html()
     page.screenshot(path=str(artifacts / "editor-metric.png"))
     page.wait_for_timeout(1500)  # longer than the autosave delay
     assert api(live_server, f"/api/rooms/{room}") == before
+    # The choice is this browser's and survives a reload.
+    page.reload()
+    wait_analysis_idle(page)
+    assert page.locator("input[name=units][value=metric]").is_checked()
 
 
 def test_corrupt_file_shows_error_and_changes_nothing(live_server, page, artifacts, tmp_path):
@@ -157,6 +165,7 @@ def test_editing_a_crop_band_makes_the_rooms_own_crop(live_server, page):
     before = api(live_server, f"/api/rooms/{room}")
     page.goto(f"{live_server}/rooms/{room}")
     wait_analysis_idle(page)
+    page.click("#tab-zones")
     page.fill("#z0-dli_min", "15")
     page.press("#z0-dli_min", "Tab")
     wait_saved(page, before["revision"])
@@ -185,3 +194,34 @@ def test_drag_paints_a_preview_that_plotly_replaces_on_drop(live_server, page):
     )
     page.mouse.up()
     page.wait_for_function("() => document.getElementById('map-preview').style.display === 'none'")
+
+
+def test_drag_preview_is_composed_in_the_browser_from_footprints(live_server, page):
+    room = fresh_room(live_server, name="Composed preview tent")
+    page.goto(f"{live_server}/rooms/{room}")
+    wait_analysis_idle(page)
+    with page.expect_response(lambda r: "/api/footprints" in r.url):
+        page.locator('[data-fixture-id="F1"]').click()
+    wait_analysis_idle(page)
+    answers = page.evaluate("() => window.leafcast.timing.length")
+    box = page.locator('[data-fixture-id="F1"]').bounding_box()
+    x, y = box["x"] + box["width"] / 2, box["y"] + box["height"] / 2
+    page.mouse.move(x, y)
+    page.mouse.down()
+    for k in range(1, 16):
+        page.mouse.move(x + 3 * k, y - 2 * k)
+        page.wait_for_timeout(20)
+    page.wait_for_function("() => window.leafcast.previewFrames.length > 3")
+    # No round trip while dragging: the map follows from the footprints alone.
+    assert page.evaluate("() => window.leafcast.timing.length") == answers
+    preview_mean = page.evaluate("() => window.leafcast.previewMean")
+    page.mouse.up()
+    page.wait_for_function("n => window.leafcast.timing.length > n", arg=answers)
+    wait_analysis_idle(page)
+    exact = page.evaluate(
+        "() => { const z = window.leafcast.analysis.zones[0].grid.ppfd.flat(); return z.reduce((a, b) => a + b, 0) / z.length; }"
+    )
+    # Walls return light the preview keeps from before the move; the direct part moves exactly (to half a cell).
+    assert abs(preview_mean - exact) < 0.03 * exact, (preview_mean, exact)
+    assert page.evaluate("() => document.getElementById('map-preview').style.display") == "none"
+    assert page.errors == []

@@ -119,3 +119,20 @@ def test_editor_says_when_figures_are_maintained(live_server, page):
     page.wait_for_selector("#figures .output-basis")
     assert "maintained at 20,000 h in service, dirt factor 0.95" in page.locator("#figures .output-basis").inner_text()
     assert page.errors == []
+
+
+def test_measured_maintenance_points_are_fitted_and_held_at_six_times(live_server, page):
+    room = fresh_room(live_server, name="Measured maintenance tent")
+    page.goto(f"{live_server}/rooms/{room}/meter")
+    page.fill("#age-hours", "50000")
+    page.click("#maint-points-box summary")
+    # The hand-worked TM-21 example of tests/engine/test_maintenance.py: a 6,000 h test.
+    page.fill("#mp-paste", "0, 100\n1000, 99.5\n2000, 99.0\n3000, 98.6\n4000, 98.1\n5000, 97.7\n6000, 97.2")
+    page.click("#age-save")
+    page.wait_for_function("() => document.getElementById('age-message').textContent.startsWith('Saved')")
+    t = api(live_server, f"/api/rooms/{room}")["room"]["fixture_types"][0]
+    assert len(t["maintenance"]["points"]) == 7 and t["maintenance"]["points"][-1]["share"] == 0.972
+    text = page.locator("#maint-table").inner_text()
+    # Held at 36,000 h: 0.999499 exp(−4.61924e-6 × 36,000) = 84.6 %; L70 reported as "> 36000 h".
+    assert "84.6 % of rated (held at the projection limit)" in text and "L70 > 36000 h" in text
+    assert page.errors == []

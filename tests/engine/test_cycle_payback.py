@@ -51,22 +51,25 @@ def test_cycle_totals_by_hand():
 
 
 def test_maintained_output_tm21_form():
-    # L90 at 50 000 h: α = −ln 0.9 / 50 000; the share at 50 000 h is 0.9 and at 100 000 h 0.81.
-    a = payback.decay_per_hour(50_000, 0.9)
-    assert_allclose(math.exp(-a * 50_000), 0.9)
-    assert_allclose(math.exp(-a * 100_000), 0.81)
+    # L90 at 50 000 h: α = −ln 0.9 / 50 000 (IES TM-21 exponential through 100 % at 0 h).
     # Mean over [0, T] of exp(−α t) = (1 − e^{−αT}) / (αT); at T = 50 000 h: 0.1 / 0.105361 = 0.94912.
+    a = -math.log(0.9) / 50_000
     assert_allclose(payback.mean_maintained_share(a, 0.0, 50_000.0), 0.1 / -math.log(0.9), rtol=1e-9)
     assert_allclose(payback.mean_maintained_share(0.0, 0.0, 10.0), 1.0)
-    with pytest.raises(ValueError):
-        payback.decay_per_hour(0, 0.9)
 
 
-def test_yearly_photons_fall_with_age():
-    a = payback.decay_per_hour(50_000, 0.9)
-    mol = payback.yearly_photons_mol(1000.0, 5000.0, 3, a)
-    assert np.all(np.diff(mol) < 0)
-    assert_allclose(mol.sum(), 1000.0 * 3 * payback.mean_maintained_share(a, 0.0, 15000.0))
+def test_yearly_mean_share_against_the_closed_form():
+    from app.engine.maintenance import from_rated_point
+
+    p = from_rated_point(90.0, 50_000.0)
+    got = payback.yearly_mean_share(p.maintenance, 12_000.0, 5_000.0, 3)
+    want = [payback.mean_maintained_share(p.alpha_per_h, 12_000.0 + k * 5_000, 17_000.0 + k * 5_000) for k in range(3)]
+    assert_allclose(got, want, rtol=1e-6)
+    assert np.all(np.diff(got) < 0)
+    # A curve held flat beyond its limit (6 × a 6,000 h test, IES TM-21): past 36,000 h the share stops falling.
+    held = from_rated_point(90.0, 50_000.0, test_duration_h=6_000.0)
+    late = payback.yearly_mean_share(held.maintenance, 40_000.0, 5_000.0, 2)
+    assert_allclose(late, held.maintenance(36_000.0), rtol=1e-12)
 
 
 def test_simple_payback_by_hand():

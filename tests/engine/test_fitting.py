@@ -5,16 +5,7 @@ import pytest
 from numpy.testing import assert_allclose
 
 from app.engine.fitting import PAR_CEILING_UMOL_J, fit_ppfd_map, plausibility, predict_at_heights
-
-
-def _howell_b3(a, b, c):
-    """Configuration factor, differential planar element to a parallel rectangle a x b at distance c with the
-    normal through one corner: Howell, "A Catalog of Radiation Heat Transfer Configuration Factors", case B-3."""
-    A, B = a / c, b / c
-    return (
-        A / np.sqrt(1 + A * A) * np.arctan(B / np.sqrt(1 + A * A))
-        + B / np.sqrt(1 + B * B) * np.arctan(A / np.sqrt(1 + B * B))
-    ) / (2 * np.pi)
+from tests.engine.test_direct import rect_factor
 
 
 def _lambertian_panel_map(shape, cell_m, height_m, side_m, ppf_umol_s):
@@ -22,16 +13,10 @@ def _lambertian_panel_map(shape, cell_m, height_m, side_m, ppf_umol_s):
     ny, nx = shape
     xs = (np.arange(nx) - (nx - 1) / 2) * cell_m
     ys = (np.arange(ny) - (ny - 1) / 2) * cell_m
-    out = np.zeros(shape)
     h = side_m / 2
-    for j, y in enumerate(ys):
-        for i, x in enumerate(xs):
-            f = 0.0
-            # Signed sum of the four corner rectangles (the point may lie outside the panel's shadow).
-            for sx, ax in ((1, h - x), (1, h + x)):
-                for sy, by in ((1, h - y), (1, h + y)):
-                    f += np.sign(ax) * np.sign(by) * _howell_b3(abs(ax), abs(by), height_m) * sx * sy
-            out[j, i] = ppf_umol_s / side_m**2 * f
+    # E = M * F, F of the panel by Howell B-3 corner rectangles (tests/engine/test_direct.py)
+    out = np.array([[rect_factor(-h - x, h - x, -h - y, h - y, height_m) for x in xs] for y in ys])
+    out *= ppf_umol_s / side_m**2
     return out
 
 
@@ -74,8 +59,3 @@ def test_bad_maps_refused():
         fit_ppfd_map([[1, 2]], 0.1, 0.5)
     with pytest.raises(ValueError, match="non-negative"):
         fit_ppfd_map(-np.ones((3, 3)), 0.1, 0.5)
-
-
-def test_closed_form_helper_matches_the_catalogue_check_value():
-    """Howell B-3 with a = b = c = 1 gives 0.138531606 (value collected in shared/REFERENCES.md)."""
-    assert_allclose(_howell_b3(1.0, 1.0, 1.0), 0.138531606, rtol=1e-8)

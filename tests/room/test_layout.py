@@ -78,3 +78,11 @@ def test_rotated_extent(rot, hx, hy):
     """Half sizes of a 1.2 x 0.1 m rectangle turned about the vertical: 0.5 (L |cos| + W |sin|), plane geometry."""
     got = layout.rotated_half_extent_m(1.2, 0.1, rot)
     assert got == pytest.approx((hx, hy), abs=1e-6)
+
+
+def test_a_single_bar_is_as_wide_as_its_bar():
+    """The footprint the engine integrates and the one validation and the sheet use are the same rectangle."""
+    bar = NS(kind="bar", length_m=1.2, width_m=0.3, bar_width_m=0.025)
+    panel = NS(kind="panel", length_m=0.6, width_m=0.6, bar_width_m=0.03)
+    assert layout.footprint_size_m(bar) == (1.2, 0.025)
+    assert layout.footprint_size_m(panel) == (0.6, 0.6)

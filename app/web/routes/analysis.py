@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+import asyncio
+import threading
 from typing import Any
 
 from fastapi import APIRouter, Query, Request
@@ -18,6 +20,7 @@ from app.web.deps import analysed, load_room, store_of
 from app.web.errors import ERRORS, ApiError, not_found
 
 router = APIRouter(tags=["analysis"])
+DISCONNECT_POLL_S = 0.5  # how often a running posted analysis checks that its client is still there
 
 
 @router.get(
@@ -46,8 +49,16 @@ async def analyze_posted(
 ):
     rf = await room_from_body(request)
     regions = parse_regions(region)
-    # CPU-bound: off the event loop, so other requests keep answering.
-    return await run_in_threadpool(analysed, rf, request=request, with_budget=budget, regions=regions)
+    # CPU-bound: off the event loop, so other requests keep answering; stopped if the client goes away.
+    abandon = threading.Event()
+    work = asyncio.ensure_future(
+        run_in_threadpool(analysed, rf, request=request, abandon=abandon, with_budget=budget, regions=regions)
+    )
+    while not work.done():
+        await asyncio.wait({work}, timeout=DISCONNECT_POLL_S)
+        if not work.done() and await request.is_disconnected():
+            abandon.set()
+    return await work
 
 
 def _zone_of(result: dict[str, Any], room_id: str, zone_id: str) -> dict[str, Any]:

@@ -9,6 +9,7 @@ from fastapi.responses import FileResponse, HTMLResponse
 
 from app.web import views
 from app.web.deps import analysed, load_room, render, store_of
+from app.web.routes.variants import renamed_redirect
 
 router = APIRouter(include_in_schema=False)
 
@@ -20,6 +21,8 @@ def room_list_page(request: Request, format: str | None = None):
 
 @router.get("/rooms/{room_id}", response_class=HTMLResponse)
 def editor_page(request: Request, room_id: str, format: str | None = None):
+    if moved := renamed_redirect(request, room_id):
+        return moved
     rf = load_room(store_of(request), room_id)
     return render(request, "editor.html", views.editor(room_id, rf, analysed(rf, request=request)), format)
 
@@ -32,6 +35,8 @@ def sheet_page(request: Request, room_id: str, format: str | None = None, paper:
 
 @router.get("/rooms/{room_id}/plan", response_class=HTMLResponse)
 def plan_page(request: Request, room_id: str, format: str | None = None):
+    if moved := renamed_redirect(request, room_id, "/plan"):
+        return moved
     rf = load_room(store_of(request), room_id)
     return render(request, "plan.html", views.planner(room_id, rf), format)
 

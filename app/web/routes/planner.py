@@ -7,6 +7,7 @@ from typing import Any
 
 from fastapi import APIRouter, Query, Request
 
+from app.room.library import fixture_library
 from app.service.jobs_pool import QueueFull
 from app.service.planner import JobBoard, PlanOptions, check_setup, curves
 from app.web.bodies import PlanIn
@@ -14,7 +15,7 @@ from app.web.deps import load_room, store_of, within_budget
 from app.web.errors import ERRORS, ApiError, not_found
 
 router = APIRouter(tags=["planner"])
-CHECK_BUDGET_FACTOR = 3  # check-my-setup analyses the room several times: a few analyses' worth of time
+CHECK_BUDGET_FACTOR = 10  # check-my-setup analyses the room many times (a real search): ten analyses' worth
 
 
 def jobs_of(request: Request) -> JobBoard:
@@ -37,17 +38,39 @@ def _job_or_404(request: Request, job_id: str):
 def start_plan(request: Request, room_id: str, body: PlanIn) -> dict[str, Any]:
     rf = load_room(store_of(request), room_id)
     within_budget(request, rf)
+    unknown = [t for t in body.type_ids if t not in fixture_library() and t not in {x.id for x in rf.room.fixture_types}]
+    if unknown:
+        raise ApiError(422, "invalid_request", f"type_ids: no fixture type '{unknown[0]}'")
     opts = PlanOptions(
         type_ids=tuple(body.type_ids),
         objective=body.objective,
+        target=body.target,
         max_power_w=body.max_power_w,
         min_clearance_m=body.min_clearance_m,
+        min_gap_m=body.min_gap_m,
+        years=body.years,
         seed=body.seed,
     )
     try:
         job = jobs_of(request).start(room_id, rf, opts)
     except QueueFull as exc:
         raise ApiError(503, "busy", f"The planner is busy: {exc}.") from exc
+    return {"job_id": job.id, "revision": rf.revision, "queue_position": job.public()["queue_position"]}
+
+
+@router.post(
+    "/api/rooms/{room_id}/check-jobs",
+    status_code=202,
+    responses=ERRORS,
+    summary="Start check-my-setup in the background (progress, cancel); poll /api/plan-jobs/{job_id}",
+)
+def start_check(request: Request, room_id: str) -> dict[str, Any]:
+    rf = load_room(store_of(request), room_id)
+    within_budget(request, rf)
+    try:
+        job = jobs_of(request).start(room_id, rf, PlanOptions(), kind="check")
+    except QueueFull as exc:
+        raise ApiError(503, "busy", f"Check-my-setup is busy: {exc}.") from exc
     return {"job_id": job.id, "revision": rf.revision, "queue_position": job.public()["queue_position"]}
 
 

@@ -18,7 +18,7 @@
       if (!th || tr.querySelector(".squares-link")) return;
       const [name, zoneId] = th.textContent.split(" · ");
       const r = state.regions.find((q) => q.name === name);
-      const zone = room.zones.find((z) => z.id === zoneId);
+      const zone = room.zones.find((z) => z.id === zoneId) || room.zones.find((z) => z.name === zoneId);  // the editor shows names
       if (!r || !zone) return;
       const [x, y] = centreIn(zone, r);
       const q = new URLSearchParams({ zone: zone.id, x_m: x.toFixed(4), y_m: y.toFixed(4) });

@@ -232,6 +232,9 @@
   // ------------------------------------------------------------ maintained output
   function fillAge() {
     const a = room.output_age || {};
+    const keep = $("mp-type").value;
+    $("mp-type").innerHTML = room.fixture_types.map((t) => `<option value="${esc(t.id)}">${esc(t.name)}</option>`).join("");
+    if (keep) $("mp-type").value = keep;
     $("age-hours").value = a.hours_in_service_h === null || a.hours_in_service_h === undefined ? "" : a.hours_in_service_h;
     $("age-dirt").value = a.dirt_factor === undefined ? 1 : a.dirt_factor;
     $("age-shown").value = a.shown_at || "recorded_age";
@@ -242,7 +245,7 @@
       const b = basis[t.id] || { factor: 1, source: "" };
       const measured = m.points && m.points.length;
       const shown = `${fmt(100 * b.factor, 1)} % of rated${b.beyond_limit ? " (held at the projection limit)" : ""}${b.l70_h ? `; L70 ${b.l70_capped ? "> " : ""}${fmt(b.l70_h)} h` : ""}`;
-      return `<tr data-type="${esc(t.id)}"><td>${esc(t.name)}</td><td>${measured ? `measured points (${m.points.length}), kept` :
+      return `<tr data-type="${esc(t.id)}"><td>${esc(t.name)}</td><td>${measured ? `measured points (${m.points.length}), kept <label><input type="checkbox" class="m-clear"> clear</label>` :
         `L <input class="m-pct" type="number" min="1" max="99" step="1" value="${m.rated_percent || ""}" aria-label="${esc(t.name)} rated percent"> at <input class="m-hours" type="number" min="1" step="1000" value="${m.rated_hours_h || ""}" aria-label="${esc(t.name)} rated hours"> h`}</td>
         <td><input class="m-test" type="number" min="1" step="1000" value="${m.test_duration_h || ""}" aria-label="${esc(t.name)} test duration" ${measured ? "disabled" : ""}></td>
         <td><input class="m-source" maxlength="300" value="${esc(m.source || "")}" aria-label="${esc(t.name)} source"></td><td title="${esc(b.source)}">${shown}</td></tr>`;
@@ -255,15 +258,28 @@
     document.querySelectorAll("#maint-table tbody tr").forEach((tr) => {
       const t = room.fixture_types.find((q) => q.id === tr.dataset.type);
       if (t.maintenance && t.maintenance.points && t.maintenance.points.length) {
-        maintenance[t.id] = { ...t.maintenance, source: tr.querySelector(".m-source").value };
+        maintenance[t.id] = tr.querySelector(".m-clear").checked ? null : { ...t.maintenance, source: tr.querySelector(".m-source").value };
         return;
       }
       const pct = num(tr.querySelector(".m-pct").value), hours = num(tr.querySelector(".m-hours").value);
       maintenance[t.id] = pct === null && hours === null ? null : { rated_percent: pct, rated_hours_h: hours, test_duration_h: num(tr.querySelector(".m-test").value), source: tr.querySelector(".m-source").value };
     });
+    const pasted = $("mp-paste").value.split(/\r?\n/).filter((l) => l.trim() !== "");
+    if (pasted.length) {
+      try {
+        const points = pasted.map((l, i) => {
+          const c = cells(l);
+          if (c.length < 2) throw new Error(`line ${i + 1}: expected hours and a %`);
+          return { hours_h: number(c[0], `line ${i + 1}`), share: number(c[1].replace("%", ""), `line ${i + 1}`) / 100 };
+        });
+        const tid = $("mp-type").value;
+        const tr = document.querySelector(`#maint-table tr[data-type="${CSS.escape(tid)}"]`);
+        maintenance[tid] = { points, source: tr ? tr.querySelector(".m-source").value : "" };
+      } catch (e) { $("age-message").textContent = `Not saved: ${e.message}`; return; }
+    }
     try {
       const body = await post(`/api/rooms/${roomId}/output-age`, { revision, output_age, maintenance });
-      roomChanged(body); fillAge();
+      roomChanged(body); fillAge(); $("mp-paste").value = "";
       $("age-message").textContent = `Saved: every figure is now shown ${body.output_basis.words}.`;
     } catch (e) { failed($("age-message"), "Not saved", e); }
   });
