@@ -7,6 +7,7 @@ import math
 from typing import Any
 
 from app import __version__
+from app.engine.compute import SceneError
 from app.room.library import crop_library, crops_for, fixture_library
 from app.room.models import WALL_FINISHES, RoomFile
 from app.room.roomfile import dump_room_file
@@ -46,6 +47,21 @@ def editor(room_id: str, room_file: RoomFile, analysis: dict[str, Any]) -> dict[
     }
 
 
+def cycle_tables(room_file: RoomFile) -> list[dict[str, Any]]:
+    """Each zone's grow cycle as a table for the sheet (a zone whose cycle cannot be computed says why)."""
+    from app.service.cycle import cycle_report, schedule_table
+
+    out = []
+    for z in room_file.room.zones:
+        if getattr(z, "cycle", None) is None:
+            continue
+        try:
+            out.append(schedule_table(cycle_report(room_file, z), room_file.room.display_units))
+        except (SceneError, ValueError) as exc:
+            out.append({"title": f"{z.name}: grow cycle", "problem": str(exc), "columns": [], "rows": []})
+    return out
+
+
 def sheet(room_id: str, room_file: RoomFile, analysis: dict[str, Any], paper: str) -> dict[str, Any]:
     room = room_file.room
     u = room.display_units
@@ -81,6 +97,7 @@ def sheet(room_id: str, room_file: RoomFile, analysis: dict[str, Any], paper: st
         "dxf_url": f"/api/rooms/{room_id}/plan.dxf",
         "output_basis": analysis.get("output_basis"),
         "meter": meter_sheet_summary(room_file),
+        "schedules": cycle_tables(room_file),
         "zones_by_id": {z.id: {"name": z.name} for z in room.zones},
     }
 

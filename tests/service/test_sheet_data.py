@@ -189,3 +189,19 @@ def test_an_entry_that_does_not_fit_its_wall_is_refused(client, tent_doc):
     r = client.post("/api/rooms", json=tent_doc)
     assert r.status_code == 422
     assert any(p["field"] == "room.entry.width_m" for p in r.json()["problems"])
+
+
+def test_sheet_prints_the_grow_cycle_week_by_week(client):
+    """A zone with a grow cycle gets its weeks on the sheet, as the cycle page computes them."""
+    from app.service.cycle import cycle_report
+
+    rid = next(r["id"] for r in client.get("/api/rooms").json() if "greenhouse" in r["id"])
+    page = client.get(f"/rooms/{rid}/sheet?format=json").json()
+    rf = parse_room_file(client.get(f"/api/rooms/{rid}/file").content)
+    zone = next(z for z in rf.room.zones if z.cycle is not None)
+    weeks = cycle_report(rf, zone)["weeks"]
+    (table,) = page["schedules"]
+    assert [r[0] for r in table["rows"]] == [str(w["week"]) for w in weeks]
+    assert [r[6] for r in table["rows"]] == [f"{w['dli_avg']:.1f}" for w in weeks]
+    html = client.get(f"/rooms/{rid}/sheet").text
+    assert "Grow cycle by week" in html
