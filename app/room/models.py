@@ -11,39 +11,43 @@ outside the room, an unknown fixture type, duplicate ids) live in
 
 from __future__ import annotations
 
-from datetime import date
 from typing import Annotated, Literal
 
-from pydantic import BaseModel, ConfigDict, Field, model_validator
+from pydantic import Field, model_validator
 
 from app.room import limits
+from app.room.meter_models import (  # noqa: F401 (re-exported: the room model's names stay here)
+    MaintenancePoint,
+    OutputAge,
+    OutputMaintenance,
+    ReadingGrid,
+    ReadingPoint,
+    ReadingSet,
+    ReadingValue,
+)
+from app.room.model_base import (  # noqa: F401 (re-exported: the room model's names stay here)
+    DisplayUnits,
+    Ident,
+    Label,
+    Metres,
+    PositiveMetres,
+    Side,
+    Stage,
+    Strict,
+)
+from app.room.year_models import (  # noqa: F401 (re-exported: the room model's names stay here)
+    GLAZINGS,
+    MAX_CYCLE_WEEKS,
+    CycleStep,
+    Greenhouse,
+    GrowCycle,
+    PaybackPlan,
+    PriceWindowIn,
+    Tariff,
+)
 
 FORMAT_NAME = "leafcast-room"
 FORMAT_VERSION = 1
-
-
-class Strict(BaseModel):
-    """Base: unknown keys, NaN and infinity are refused."""
-
-    model_config = ConfigDict(extra="forbid", allow_inf_nan=False)
-
-
-Ident = Annotated[
-    str,
-    Field(
-        pattern=r"^[A-Za-z0-9][A-Za-z0-9_.\-]{0,39}$",
-        description="Short id: letters, digits, '_', '.', '-' (at most 40).",
-    ),
-]
-Label = Annotated[str, Field(min_length=1, max_length=120)]
-Metres = Annotated[float, Field(ge=0, le=limits.MAX_ROOM_SIDE_M)]
-PositiveMetres = Annotated[float, Field(gt=0, le=limits.MAX_ROOM_SIDE_M)]
-
-Side = Literal["front", "back", "left", "right"]
-"""Walls by their place on the plan: front is y = 0, back y = length, left x = 0, right x = width."""
-
-Stage = Literal["propagation", "vegetative", "flowering"]
-DisplayUnits = Literal["imperial", "metric"]
 
 
 class WallFinish(Strict):
@@ -148,39 +152,6 @@ class Beam(Strict):
         return self
 
 
-class MaintenancePoint(Strict):
-    hours_h: float = Field(ge=0, le=500_000, description="Hours of operation.")
-    share: float = Field(gt=0, le=1.2, description="Output as a share of the initial output (1 = 100 %).")
-
-
-class OutputMaintenance(Strict):
-    """How a fixture type's output falls with hours: a rated point (L90 at 36,000 h) or measured points.
-
-    Projected by the exponential form of IES TM-21 (see :mod:`app.engine.maintenance`).
-    """
-
-    rated_percent: float | None = Field(default=None, gt=0, lt=100, description="p of the rated Lp (90 for L90).")
-    rated_hours_h: float | None = Field(default=None, gt=0, le=500_000, description="Hours of the rated Lp.")
-    test_duration_h: float | None = Field(
-        default=None, gt=0, le=200_000, description="Test behind the rating, when known (projection held at 6 ×)."
-    )
-    points: list[MaintenancePoint] = Field(default_factory=list, max_length=200)
-    source: str = Field(default="", max_length=300, description="Where the figures come from.")
-
-    @model_validator(mode="after")
-    def _rated_or_points(self) -> OutputMaintenance:
-        rated = (self.rated_percent is None, self.rated_hours_h is None)
-        if rated[0] != rated[1]:
-            raise ValueError("a rated maintenance needs both rated_percent and rated_hours_h (e.g. 90 and 36000)")
-        if rated == (True, True) and len(self.points) < 2:
-            raise ValueError("give a rated point (rated_percent and rated_hours_h) or at least two measured points")
-        if rated == (False, False) and self.points:
-            raise ValueError("give either a rated point or measured points, not both")
-        if self.points and len({p.hours_h for p in self.points if p.hours_h > 0}) < 2:
-            raise ValueError("measured maintenance needs points at two or more different hours after 0 h")
-        return self
-
-
 class FixtureType(Strict):
     id: Ident
     name: Label
@@ -191,7 +162,9 @@ class FixtureType(Strict):
     weight_kg: float | None = Field(default=None, ge=0, le=500)
     price: float | None = Field(default=None, ge=0, le=1_000_000, description="Price of one, in the room's currency.")
     notes: str = Field(default="", max_length=1000)
-    hanging_points_m: list[tuple[Annotated[float, Field(ge=-2.5, le=2.5)], Annotated[float, Field(ge=-2.5, le=2.5)]]] | None = Field(
+    hanging_points_m: (
+        list[tuple[Annotated[float, Field(ge=-2.5, le=2.5)], Annotated[float, Field(ge=-2.5, le=2.5)]]] | None
+    ) = Field(
         default=None,
         max_length=limits.MAX_HANGING_POINTS,
         description="Where it hangs from, (x, y) in its own frame from its centre [m]; none: the sheet's default.",
@@ -216,119 +189,6 @@ class Fixture(Strict):
     dimming_pct: float = Field(default=100.0, ge=10, le=100)
     on: bool = True
     circuit: str = Field(default="A", min_length=1, max_length=40)
-
-
-MAX_CYCLE_WEEKS = 104
-GLAZINGS = Literal[
-    "glass_single",
-    "glass_diffuse",
-    "acrylic_double",
-    "polycarbonate_twin",
-    "polycarbonate_triple",
-    "film_single",
-    "film_double",
-    "custom",
-]
-
-
-class CycleStep(Strict):
-    """From ``week`` on (until the next step) the zone runs these settings; ``ramp`` moves them in a straight
-    line, week by week, to the next step's values."""
-
-    week: int = Field(ge=1, le=MAX_CYCLE_WEEKS, description="First week of the step (week 1 starts the cycle).")
-    stage: Stage = "vegetative"
-    photoperiod_h: float = Field(gt=0, le=24)
-    canopy_height_m: Metres | None = Field(default=None, description="Canopy top this week; none: the zone's own.")
-    fixture_height_m: PositiveMetres | None = Field(
-        default=None, description="Hanging height of the zone's fixtures; none: as they hang."
-    )
-    dimming_pct: float | None = Field(default=None, ge=10, le=100, description="None: as each fixture is set.")
-    ramp: bool = False
-
-
-class GrowCycle(Strict):
-    """A zone's crop cycle week by week, from sowing or transplant to harvest."""
-
-    weeks: int = Field(ge=1, le=MAX_CYCLE_WEEKS)
-    steps: list[CycleStep] = Field(min_length=1, max_length=MAX_CYCLE_WEEKS)
-    harvests: float = Field(default=1.0, gt=0, le=1000, description="Harvests the cycle yields.")
-    start_month: int | None = Field(
-        default=None, ge=1, le=12, description="Month the cycle starts; in a greenhouse zone it adds the sun's light."
-    )
-
-    @model_validator(mode="after")
-    def _steps_in_order(self) -> GrowCycle:
-        weeks = [s.week for s in self.steps]
-        if weeks[0] != 1:
-            raise ValueError("the first step must start at week 1")
-        if any(b <= a for a, b in zip(weeks, weeks[1:], strict=False)):
-            raise ValueError("steps must start at rising weeks, one step per week at most")
-        if weeks[-1] > self.weeks:
-            raise ValueError(f"a step starts at week {weeks[-1]}, after the cycle's {self.weeks} weeks")
-        return self
-
-
-class Greenhouse(Strict):
-    """A zone under glazing: the sun gives part of the light, the fixtures the rest."""
-
-    glazing: GLAZINGS = "glass_single"
-    transmission: float | None = Field(
-        default=None, gt=0, le=1, description="PAR transmission of the cover; none: the glazing's typical value."
-    )
-    place: str = Field(default="", max_length=80, description="A chosen place (sets latitude and longitude).")
-    latitude_deg: float = Field(default=40.0, ge=-66, le=66, description="Polar days and nights are not modelled.")
-    longitude_deg: float = Field(default=-75.0, ge=-180, le=180)
-    altitude_m: float = Field(default=0.0, ge=-400, le=5000)
-    sky_share: float = Field(
-        default=0.6, gt=0, le=1, description="Share of the clear-sky sun that reaches the site on average (clouds)."
-    )
-    outdoor_dli_by_month: list[Annotated[float, Field(ge=0, le=80)]] | None = Field(
-        default=None, min_length=12, max_length=12, description="Typed monthly outdoor DLI; replaces the sun model."
-    )
-    target_dli: float | None = Field(default=None, gt=0, le=80, description="None: the bottom of the crop's band.")
-
-
-class PriceWindowIn(Strict):
-    days: list[Annotated[int, Field(ge=0, le=6)]] = Field(
-        default_factory=lambda: [0, 1, 2, 3, 4], min_length=1, max_length=7, description="0 = Monday ... 6 = Sunday."
-    )
-    start_h: float = Field(ge=0, le=24)
-    end_h: float = Field(ge=0, le=24, description="At or before start_h: runs past midnight.")
-    price_per_kwh: float = Field(ge=0, le=100)
-    peak: bool = Field(default=False, description="A demand charge counts in these hours.")
-
-
-class Tariff(Strict):
-    """Time-of-use prices over the schedule's flat price (which applies outside every window)."""
-
-    windows: list[PriceWindowIn] = Field(default_factory=list, max_length=48)
-    demand_charge_per_kw: float = Field(default=0.0, ge=0, le=1000, description="Per kW of peak draw, per month.")
-    demand_in_peak_only: bool = False
-    lights_on_h: float = Field(default=6.0, ge=0, lt=24, description="When the lights come on now (clock time).")
-
-
-class PaybackPlan(Strict):
-    """Replace fixtures with another type and see when the saving pays for it."""
-
-    variant_type_id: Ident = Field(description="The new type: in room.fixture_types or the library.")
-    replace_type_id: Ident | None = Field(default=None, description="Only fixtures of this type; none: all of them.")
-    price_per_fixture: float = Field(default=0.0, ge=0, le=1e6)
-    install_cost: float = Field(default=0.0, ge=0, le=1e8)
-    horizon_years: int = Field(default=5, ge=1, le=30)
-    discount_rate: float = Field(default=0.0, ge=0, le=0.5)
-    match_light: bool = Field(default=True, description="Dim the new fixtures to the light the room has now.")
-    rated_hours_now: float | None = Field(
-        default=None,
-        gt=0,
-        le=1e6,
-        description="L90 hours of the present fixtures; none: the type's maintenance record.",
-    )
-    rated_hours_variant: float | None = Field(
-        default=None, gt=0, le=1e6, description="L90 hours of the new type; none: its maintenance record."
-    )
-    hours_run_now: float | None = Field(
-        default=None, ge=0, le=1e6, description="Hours the present fixtures have run; none: the room's recorded age."
-    )
 
 
 class CanopyZone(Strict):
@@ -406,89 +266,6 @@ class Entry(Strict):
         default=None, gt=0, le=limits.MAX_ROOM_SIDE_M, description="Opening width; none: 0.8 m or half a short wall."
     )
     label: str = Field(default="Entry", min_length=1, max_length=40)
-class OutputAge(Strict):
-    """The fixtures' age and dirt, and at which age figures are shown."""
-
-    hours_in_service_h: float | None = Field(
-        default=None, ge=0, le=500_000, description="Hours the fixtures have run so far; none: new."
-    )
-    dirt_factor: float = Field(default=1.0, ge=0.5, le=1.0, description="Share of output through dust on lenses.")
-    shown_at: Literal["recorded_age", "installation", "chosen_age"] = Field(
-        default="recorded_age",
-        description="recorded_age: at hours_in_service_h (installation when none); chosen_age: at chosen_age_h.",
-    )
-    chosen_age_h: float | None = Field(default=None, ge=0, le=500_000)
-
-    @model_validator(mode="after")
-    def _chosen_age_given(self) -> OutputAge:
-        if self.shown_at == "chosen_age" and self.chosen_age_h is None:
-            raise ValueError("shown_at 'chosen_age' needs chosen_age_h")
-        return self
-
-
-ReadingValue = Annotated[float, Field(ge=0, le=limits.MAX_READING_VALUE)]
-
-
-class ReadingPoint(Strict):
-    x_m: Metres
-    y_m: Metres
-    value: ReadingValue = Field(description="Meter reading: µmol m⁻² s⁻¹ (quantum) or lx (lux meter).")
-
-
-class ReadingGrid(Strict):
-    """Readings taken on a grid: row r, column c at (origin_x + c·spacing_x, origin_y + r·spacing_y)."""
-
-    origin_x_m: Metres
-    origin_y_m: Metres
-    spacing_x_m: PositiveMetres
-    spacing_y_m: PositiveMetres
-    values: list[list[ReadingValue | None]] = Field(
-        min_length=1, max_length=limits.MAX_READING_ROWS, description="Rows front to back; None: not taken."
-    )
-
-    @model_validator(mode="after")
-    def _rectangular(self) -> ReadingGrid:
-        widths = {len(row) for row in self.values}
-        if len(widths) != 1 or 0 in widths:
-            raise ValueError(f"every row must have the same number of readings (rows have {sorted(widths)})")
-        if max(widths) > limits.MAX_READING_ROWS:
-            raise ValueError(f"at most {limits.MAX_READING_ROWS} readings per row")
-        return self
-
-
-class ReadingSet(Strict):
-    """Meter readings over one zone on one day."""
-
-    id: Ident
-    zone_id: Ident
-    taken_on: date
-    sensor: Literal["quantum", "lux"] = "quantum"
-    lux_per_ppfd: float | None = Field(
-        default=None, gt=1, le=200, description="Lux per µmol m⁻² s⁻¹ of the light measured (lux meters)."
-    )
-    lux_factor_source: str = Field(default="", max_length=200)
-    dimming_pct: float | None = Field(
-        default=None, ge=10, le=100, description="Dimming of every fixture when read; none: as in the room now."
-    )
-    grid: ReadingGrid | None = None
-    points: list[ReadingPoint] = Field(default_factory=list, max_length=limits.MAX_READING_POINTS)
-    notes: str = Field(default="", max_length=500)
-
-    @model_validator(mode="after")
-    def _one_layout(self) -> ReadingSet:
-        if (self.grid is None) == (not self.points):
-            raise ValueError("give the readings either as a grid or as points (exactly one of the two)")
-        if self.sensor == "lux" and self.lux_per_ppfd is None:
-            raise ValueError("lux readings need lux_per_ppfd, the spectrum's lux per µmol m⁻² s⁻¹")
-        if self.sensor == "quantum":
-            values = [p.value for p in self.points] if self.points else [v for r in self.grid.values for v in r]
-            top = max((v for v in values if v is not None), default=0.0)
-            if top > limits.MAX_PPFD_READING:
-                raise ValueError(
-                    f"a quantum reading of {top:g} µmol m⁻² s⁻¹ is above {limits.MAX_PPFD_READING:g}: "
-                    "lux readings need sensor 'lux'"
-                )
-        return self
 
 
 class Room(Strict):

@@ -262,7 +262,9 @@ def _entry_problems(room: Room) -> list[Problem]:
     if e.width_m is not None and e.width_m > wall + _EDGE_TOLERANCE_M:
         out.append(Problem("room.entry.width_m", f"{e.width_m:g} m is wider than the {e.side} wall ({wall:g} m)"))
     if e.offset_m is not None and e.offset_m > wall + _EDGE_TOLERANCE_M:
-        out.append(Problem("room.entry.offset_m", f"{e.offset_m:g} m is past the end of the {e.side} wall ({wall:g} m)"))
+        out.append(
+            Problem("room.entry.offset_m", f"{e.offset_m:g} m is past the end of the {e.side} wall ({wall:g} m)")
+        )
     return out
 
 

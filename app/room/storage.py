@@ -267,7 +267,9 @@ class RoomStore:
             src = self.trash_dir / f"{room_id}{SUFFIX}"
             if not src.is_file():
                 raise RoomNotFound(room_id)
-            new_id = room_id if not self.exists(room_id) else self.unique_id(parse_room_file(src.read_bytes()).room.name)
+            new_id = (
+                room_id if not self.exists(room_id) else self.unique_id(parse_room_file(src.read_bytes()).room.name)
+            )
             os.replace(src, self._path(new_id))
             _fsync_dir(self.rooms_dir)
             return new_id
