@@ -200,3 +200,57 @@ class Analysis(Result):
     elapsed_ms: float = Field(description="Whole analysis, engine included [ms]")
     budget: Budget | None = None
     output_basis: OutputBasis | None = Field(default=None, description="At which age the output is shown")
+
+
+class JobStarted(Result):
+    job_id: str
+    revision: int = Field(description="Revision of the room the job started from (Apply saves against it)")
+    queue_position: int | None = None
+
+
+class PlannerJob(Result):
+    """A background planner or check-my-setup job: progress, the best found so far, the final result."""
+
+    id: str
+    kind: str = Field(description="'plan' or 'check'")
+    room_id: str
+    revision: int
+    progress: float = Field(description="Share of the search done, 0-1")
+    zone: str | None = None
+    found: int | None = None
+    best_so_far: Any = None
+    done: bool
+    cancelled: bool
+    error: str | None = None
+    result: Any = None
+    queue_position: int | None = Field(default=None, description="Place in the queue while waiting to start")
+
+
+class SpectrumFigures(Result):
+    """Photon shares by band, photon-efficacy ceilings (Planck relation) and photometric conversions."""
+
+    blue_400_500: float
+    green_500_600: float
+    red_600_700: float
+    far_red_700_750: float
+    ceiling_umol_j: float = Field(description="PPF per watt of a perfectly efficient source of this spectrum")
+    ceiling_400_750_umol_j: float
+    umol_per_lumen: float
+    ppfd_per_klux: float
+    lux_per_ppfd: float = Field(description="Lux per µmol m⁻² s⁻¹ (Thimijan & Heins 1983 method)")
+
+
+class MapFit(Result):
+    ppf_umol_s: float
+    exponent: float = Field(description="n of the fitted cosⁿ beam (1: Lambertian)")
+    beam_angle_deg: float
+    side_m: float = Field(description="Side of the fitted square emitter [m]")
+    rms_error: float = Field(description="RMS residual relative to the map's mean")
+    max_abs_error_umol_m2_s: float
+    residuals: list[list[float]]
+
+
+class MapFitResult(Result):
+    fit: MapFit
+    predictions: list[dict[str, Any]]
+    findings: list[dict[str, Any]]

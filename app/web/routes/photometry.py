@@ -13,6 +13,7 @@ from app.room.roomfile import Problem
 from app.room.storage import slugify
 from app.service.photometry import MAX_FILE_BYTES as MAX_PHOTOMETRY_BYTES
 from app.service.photometry import PhotometryError, fixture_type_from, parse_ies, parse_ldt
+from app.service.results import MapFitResult, SpectrumFigures
 from app.web.bodies import MapFitIn, SpectrumIn
 from app.web.errors import ERRORS, ApiError
 
@@ -68,7 +69,7 @@ async def import_photometry(
     responses=ERRORS,
     summary="Band shares, photon ceiling and lux-to-PPFD factor of a spectrum",
 )
-def spectrum(body: SpectrumIn) -> dict[str, Any]:
+def spectrum(body: SpectrumIn) -> SpectrumFigures:
     try:
         if body.csv:
             wl, pw = parse_spectrum_csv(body.csv)
@@ -86,7 +87,7 @@ def spectrum(body: SpectrumIn) -> dict[str, Any]:
     responses=ERRORS,
     summary="Fit a fixture to a published PPFD map and check the map is plausible",
 )
-def fit_map(body: MapFitIn) -> dict[str, Any]:
+def fit_map(body: MapFitIn) -> MapFitResult:
     widths = {len(r) for r in body.readings}
     if len(widths) != 1 or not 3 <= widths.pop() <= 101:
         raise ApiError(422, "invalid_request", "every row of readings must have the same length, 3 to 101")

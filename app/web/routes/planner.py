@@ -10,6 +10,7 @@ from fastapi import APIRouter, Query, Request
 from app.room.library import fixture_library
 from app.service.jobs_pool import QueueFull
 from app.service.planner import JobBoard, PlanOptions, check_setup, curves
+from app.service.results import JobStarted, PlannerJob
 from app.web.bodies import PlanIn
 from app.web.deps import load_room, store_of, within_budget
 from app.web.errors import ERRORS, ApiError, not_found
@@ -35,7 +36,7 @@ def _job_or_404(request: Request, job_id: str):
     responses=ERRORS,
     summary="Start the layout planner in the background; poll the job",
 )
-def start_plan(request: Request, room_id: str, body: PlanIn) -> dict[str, Any]:
+def start_plan(request: Request, room_id: str, body: PlanIn) -> JobStarted:
     rf = load_room(store_of(request), room_id)
     within_budget(request, rf)
     unknown = [t for t in body.type_ids if t not in fixture_library() and t not in {x.id for x in rf.room.fixture_types}]
@@ -64,7 +65,7 @@ def start_plan(request: Request, room_id: str, body: PlanIn) -> dict[str, Any]:
     responses=ERRORS,
     summary="Start check-my-setup in the background (progress, cancel); poll /api/plan-jobs/{job_id}",
 )
-def start_check(request: Request, room_id: str) -> dict[str, Any]:
+def start_check(request: Request, room_id: str) -> JobStarted:
     rf = load_room(store_of(request), room_id)
     within_budget(request, rf)
     try:
@@ -75,12 +76,12 @@ def start_check(request: Request, room_id: str) -> dict[str, Any]:
 
 
 @router.get("/api/plan-jobs/{job_id}", responses=ERRORS, summary="Progress and best layouts so far")
-def plan_job(request: Request, job_id: str) -> dict[str, Any]:
+def plan_job(request: Request, job_id: str) -> PlannerJob:
     return _job_or_404(request, job_id).public()
 
 
 @router.delete("/api/plan-jobs/{job_id}", responses=ERRORS, summary="Cancel a planner job")
-def cancel_job(request: Request, job_id: str) -> dict[str, Any]:
+def cancel_job(request: Request, job_id: str) -> PlannerJob:
     job = _job_or_404(request, job_id)
     job.cancel.set()
     return job.public()
