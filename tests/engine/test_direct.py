@@ -142,3 +142,20 @@ def test_stamps_are_shared_and_shift_exactly():
     b = Emitter("b", 0.85, 1.0, 0.5, 100.0, lambertian(), "panel", 0.3, 0.3)
     ma, mb = full_map(a, g), full_map(b, g)
     assert_allclose(mb[:, 1:], ma[:, :-1], rtol=1e-5, atol=1e-7)
+
+
+def test_narrow_beam_close_to_the_plane_does_not_overflow():
+    """cosⁿ with a large n a few mm above the points: E = (n+1)/(2π) Φ cos^(n+1)/d² stays finite (Lambert,
+    inverse-square law); the overflow once surfaced as a server error from the map fit (found by schemathesis)."""
+    import warnings
+
+    from app.engine.direct import irradiance_from_nodes
+    from app.engine.distributions import cosine_power
+
+    n, h = 400.0, 1e-3
+    pts = np.array([[0.0, 0.0, 0.0], [0.0005, 0.0, 0.0]])
+    with warnings.catch_warnings():
+        warnings.simplefilter("error")
+        e = irradiance_from_nodes(pts, np.array([[0.0, 0.0, h]]), np.array([1.0]), cosine_power(n), 0.0)
+    d = np.hypot(pts[:, 0], h)
+    assert_allclose(e, (n + 1) / (2 * np.pi) * (h / d) ** (n + 1) / d**2, rtol=1e-9)
