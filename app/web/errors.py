@@ -63,6 +63,17 @@ def room_error(exc: RoomFileError) -> ApiError:
     return ApiError(status, exc.kind, message, exc.problems)
 
 
+def stale_revision(exc) -> ApiError:
+    """409 for a save based on an old revision (a :class:`app.room.storage.StaleRevision`): nothing was saved."""
+    return ApiError(
+        409,
+        "stale_revision",
+        f"This room was changed elsewhere (now revision {exc.current}); your change was based on "
+        f"revision {exc.given} and was not saved.",
+        current_revision=exc.current,
+    )
+
+
 def not_found(what: str) -> ApiError:
     return ApiError(404, "not_found", what)
 

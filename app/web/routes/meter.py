@@ -19,7 +19,7 @@ from app.service.maintained import output_basis
 from app.service.meter_edits import delete_reading_set, lux_factor_presets, put_reading_set, set_output_age
 from app.web.bodies import ApiIn
 from app.web.deps import load_room, render, store_of
-from app.web.errors import ERRORS, ApiError, not_found, room_error
+from app.web.errors import ERRORS, ApiError, not_found, room_error, stale_revision
 
 router = APIRouter()
 
@@ -55,13 +55,7 @@ def _save(request: Request, room_id: str, change) -> dict[str, Any]:
     try:
         stored = store.save(room_id, new)
     except StaleRevision as exc:
-        raise ApiError(
-            409,
-            "stale_revision",
-            f"This room was changed elsewhere (now revision {exc.current}); your change was based on "
-            f"revision {exc.given} and was not saved.",
-            current_revision=exc.current,
-        ) from exc
+        raise stale_revision(exc) from exc
     return {"id": room_id, "revision": stored.revision, "room_file": dump_room_file(stored), "stored": stored}
 
 

@@ -13,7 +13,7 @@ from app.room.roomfile import dump_room_file, to_json_bytes
 from app.room.storage import RoomNotFound, StaleRevision
 from app.web.bodies import ROOM_BODY, room_from_body
 from app.web.deps import load_room, store_of
-from app.web.errors import ERRORS, ApiError, not_found
+from app.web.errors import ERRORS, not_found, stale_revision
 
 router = APIRouter(prefix="/api/rooms", tags=["rooms"])
 
@@ -95,13 +95,7 @@ async def save_room(room_id: str, request: Request):
     except RoomNotFound as exc:  # deleted while the body was arriving
         raise not_found(f"room '{room_id[:80]}' was deleted while this save was arriving; nothing was saved") from exc
     except StaleRevision as exc:
-        raise ApiError(
-            409,
-            "stale_revision",
-            f"This room was changed elsewhere (now revision {exc.current}); your change was based on "
-            f"revision {exc.given} and was not saved.",
-            current_revision=exc.current,
-        ) from exc
+        raise stale_revision(exc) from exc
     return {"id": room_id, "revision": stored.revision, "name": stored.room.name}
 
 
