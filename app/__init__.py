@@ -1,3 +1,3 @@
 """Leafcast: lay out grow-room lighting and see the canopy PPFD and DLI it gives."""
 
-__version__ = "0.1.0"
+__version__ = "0.2.0"
