@@ -56,7 +56,12 @@ def _save(request: Request, room_id: str, change) -> dict[str, Any]:
         stored = store.save(room_id, new)
     except StaleRevision as exc:
         raise stale_revision(exc) from exc
-    return {"id": room_id, "revision": stored.revision, "room_file": dump_room_file(stored), "stored": stored}
+    return {
+        "id": room_id,
+        "revision": stored.revision,
+        "room_file": dump_room_file(stored),
+        "output_basis": output_basis(stored.room),
+    }
 
 
 def meter_page_data(room_id: str, room_file: RoomFile) -> dict[str, Any]:
@@ -90,9 +95,7 @@ def meter_page(request: Request, room_id: str, format: str | None = None):
 @router.post("/api/rooms/{room_id}/readings", responses=ERRORS, tags=["meter"], summary="Add or replace a reading set")
 def save_readings(request: Request, room_id: str, body: ReadingSetIn) -> dict[str, Any]:
     doc = body.reading_set.model_dump(mode="json")
-    out = _save(request, room_id, lambda rf: put_reading_set(rf, body.revision, doc))
-    out["output_basis"] = output_basis(out.pop("stored").room)
-    return out
+    return _save(request, room_id, lambda rf: put_reading_set(rf, body.revision, doc))
 
 
 @router.delete(
@@ -105,9 +108,7 @@ def delete_readings(request: Request, room_id: str, set_id: str, revision: int =
         except KeyError as exc:
             raise not_found(f"no reading set '{set_id}' in this room") from exc
 
-    out = _save(request, room_id, change)
-    out["output_basis"] = output_basis(out.pop("stored").room)
-    return out
+    return _save(request, room_id, change)
 
 
 @router.get(
@@ -149,7 +150,6 @@ def apply_fit(request: Request, room_id: str, set_id: str, body: ApplyIn) -> dic
         return new
 
     out = _save(request, room_id, change)
-    out["output_basis"] = output_basis(out.pop("stored").room)
     out["changed"] = changed
     return out
 
@@ -172,9 +172,7 @@ def save_output_age(request: Request, room_id: str, body: OutputAgeIn) -> dict[s
                 422, "unknown_fixture_type", f"maintenance: no fixture type '{exc.args[0]}' in this room"
             ) from exc
 
-    out = _save(request, room_id, change)
-    out["output_basis"] = output_basis(out.pop("stored").room)
-    return out
+    return _save(request, room_id, change)
 
 
 @router.get(
