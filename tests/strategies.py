@@ -8,6 +8,7 @@ the analysis and the planner are reached with valid input.
 from __future__ import annotations
 
 import copy
+import math
 
 from hypothesis import strategies as st
 
@@ -35,12 +36,13 @@ def valid_room_docs(draw, names=SAMPLE_NAMES) -> dict:
         # Move it within the zone it lights (or the room), keeping its footprint inside the walls.
         x0, x1 = (lit.x_m, lit.x_m + lit.width_m) if lit else (0.0, room["width_m"])
         y0, y1 = (lit.y_m, lit.y_m + lit.length_m) if lit else (0.0, room["length_m"])
-        x0, x1 = max(x0, hx), min(x1, room["width_m"] - hx)
-        y0, y1 = max(y0, hy), min(y1, room["length_m"] - hy)
+        # Bounds on the 0.1 mm lattice the positions are rounded to, so rounding never crosses a wall.
+        x0, x1 = math.ceil(max(x0, hx) * 1e4) / 1e4, math.floor(min(x1, room["width_m"] - hx) * 1e4) / 1e4
+        y0, y1 = math.ceil(max(y0, hy) * 1e4) / 1e4, math.floor(min(y1, room["length_m"] - hy) * 1e4) / 1e4
         if x0 < x1:
-            f["x_m"] = round(draw(st.floats(x0, x1)), 4)
+            f["x_m"] = min(max(round(draw(st.floats(x0, x1)), 4), x0), x1)
         if y0 < y1:
-            f["y_m"] = round(draw(st.floats(y0, y1)), 4)
+            f["y_m"] = min(max(round(draw(st.floats(y0, y1)), 4), y0), y1)
     if room["fixtures"] and not any(f["on"] for f in room["fixtures"]):
         room["fixtures"][draw(st.integers(0, len(room["fixtures"]) - 1))]["on"] = True  # a lit room to analyse
     return doc
