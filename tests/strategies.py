@@ -31,7 +31,9 @@ def valid_room_docs(draw, names=SAMPLE_NAMES) -> dict:
         f["dimming_pct"] = draw(st.floats(10, 100).map(lambda d: round(d, 1)))
         f["on"] = draw(st.booleans())
         g = types[f["type_id"]]["geometry"]
-        hx, hy = layout.rotated_half_extent_m(g["length_m"], g["width_m"], f["rotation_deg"])
+        # The layout rule's own footprint (a single bar is as wide as its bar), so the walls rule agrees.
+        size = layout.footprint_size_m(_Zone({"bar_width_m": g["width_m"], **g}))
+        hx, hy = layout.rotated_half_extent_m(*size, f["rotation_deg"])
         lit = layout.zone_lit_by(zones, _Fixture(f))
         # Move it within the zone it lights (or the room), keeping its footprint inside the walls.
         x0, x1 = (lit.x_m, lit.x_m + lit.width_m) if lit else (0.0, room["width_m"])
