@@ -59,3 +59,27 @@ def test_bad_maps_refused():
         fit_ppfd_map([[1, 2]], 0.1, 0.5)
     with pytest.raises(ValueError, match="non-negative"):
         fit_ppfd_map(-np.ones((3, 3)), 0.1, 0.5)
+
+
+def test_one_efficacy_threshold_for_code_page_and_readme():
+    """The flag sits at one value, quoted by the message and the README (the 3.1/3.41 mismatch)."""
+    from pathlib import Path
+
+    from app.engine.fitting import BEST_MEASURED_UMOL_J, SUSPICIOUS_ABOVE_UMOL_J
+
+    assert SUSPICIOUS_ABOVE_UMOL_J == 3.41  # 10 % over 3.1 µmol/J (Kusuma, Pattison & Bugbee 2020; from memory)
+    r = np.ones((3, 3))
+    just_below = {f["code"]: f for f in plausibility(r, 0.1, 3.40 * 100.0, 100.0)}
+    just_above = {f["code"]: f for f in plausibility(r, 0.1, 3.42 * 100.0, 100.0)}
+    assert "above_best_measured" not in just_below and "efficacy" in just_below
+    assert f"{SUSPICIOUS_ABOVE_UMOL_J:g} µmol/J" in just_above["above_best_measured"]["message"]
+    readme = (Path(__file__).resolve().parents[2] / "README.md").read_text(encoding="utf-8")
+    assert f"above {SUSPICIOUS_ABOVE_UMOL_J:g} µmol/J" in readme and f"about {BEST_MEASURED_UMOL_J:g} µmol/J" in readme
+
+
+def test_impossible_map_is_not_also_called_plausible():
+    readings = np.full((5, 5), 1000.0)  # 1,000 µmol/s on 1 m², from a fixture said to emit 600 µmol/s
+    found = {f["code"]: f for f in plausibility(readings, 0.2, 600.0, 250.0)}  # 2.4 µmol/J claimed
+    assert found["more_photons_than_emitted"]["level"] == "impossible"
+    msg = found["efficacy"]["message"]
+    assert msg.startswith("The claimed figures alone give 2.40 µmol/J") and "does not fit them" in msg
