@@ -98,13 +98,20 @@
         { type: "scatter", mode: "lines+markers", name: "centre", x: out.predictions.map((p) => Units.axisValue(p.height_m, units)), y: out.predictions.map((p) => p.centre) },
       ], { height: 260, margin: { l: 50, r: 10, t: 24, b: 40 }, title: { text: "PPFD over the map area", font: { size: 12 } },
            xaxis: { title: { text: `hanging height (${Units.axisUnit(units)})` } } }, { displaylogo: false });
-      const ppf = body.claimed_ppf_umol_s && !out.findings.some((x) => x.level === "impossible") ? body.claimed_ppf_umol_s : f.ppf_umol_s;
+      // The type carries the PPF that fits the map (the map is what was measured); power is never guessed.
+      const ppf = f.ppf_umol_s;
+      if (!body.power_w) {
+        $("add-none").hidden = false;
+        $("add-fields").hidden = true;
+        $("add-none").textContent = "Enter the fixture's claimed input power (W) and fit again to add it as a type: Leafcast does not guess the power, so its µmol/J stays unknown.";
+        return;
+      }
       offer({ id: "fitted-map", name: "Fitted from a PPFD map",
               geometry: f.side_m > 0.005 ? { kind: "panel", length_m: +f.side_m.toFixed(4), width_m: +f.side_m.toFixed(4) } : { kind: "point" },
               beam: { kind: "cosine_power", beam_angle_deg: +Math.min(170, Math.max(10, f.beam_angle_deg)).toFixed(2) },
-              ppf_umol_s: +ppf.toFixed(1), power_w: body.power_w || +(ppf / 2.5).toFixed(1), weight_kg: null,
-              notes: `Fitted to a ${body.readings.length} × ${body.readings[0].length} PPFD map (RMS error ${fmt(100 * f.rms_error, 1)} %).` +
-                     (body.power_w ? "" : " Power assumed at 2.5 µmol/J: enter the real figure.") });
+              ppf_umol_s: +ppf.toFixed(1), power_w: body.power_w, weight_kg: null,
+              notes: `Fitted to a ${body.readings.length} × ${body.readings[0].length} PPFD map (RMS error ${fmt(100 * f.rms_error, 1)} %); PPF from the fit` +
+                     (body.claimed_ppf_umol_s ? `, ${fmt(body.claimed_ppf_umol_s)} µmol/s claimed.` : ".") });
     } catch (e) { say("fit-message", `Not fitted: ${e.message}`, true); }
   });
 

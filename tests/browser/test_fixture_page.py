@@ -1,5 +1,7 @@
 """The new-fixture-type page in Chromium: import a file, fit a map, add the result to a room."""
 
+import json
+
 import pytest
 
 from tests.browser.helpers import api, fresh_room
@@ -28,9 +30,19 @@ def test_file_import_map_fit_and_add_to_room(live_server, page, artifacts, tmp_p
     page.wait_for_selector("#fit-findings li.impossible")
     assert "cannot hold more photons" in page.locator("#fit-findings").inner_text()
     page.fill("#fit-ppf", "600")
+    page.fill("#fit-power", "")
+    page.click("#fit-run")
+    # No power given: nothing is offered and the page asks for it (no µmol/J is invented).
+    page.wait_for_function("() => !document.querySelector('#fit-findings li.impossible')")
+    page.wait_for_function("() => document.querySelector('#add-none').textContent.includes('does not guess the power')")
+    assert page.locator("#add-fields").is_hidden()
     page.fill("#fit-power", "240")
     page.click("#fit-run")
-    page.wait_for_function("() => !document.querySelector('#fit-findings li.impossible')")
+    page.wait_for_selector("#add-fields", state="visible")
+    offered = json.loads(page.locator("#ftype-json").inner_text())
+    fitted_ppf = float(page.locator("#fit-report td").first.inner_text().split()[0].replace(",", ""))
+    assert offered["power_w"] == 240
+    assert offered["ppf_umol_s"] == pytest.approx(fitted_ppf, rel=0.01)  # the fit's PPF, not the claim
     page.screenshot(path=str(artifacts / "new-fixture-type.png"), full_page=True)
     page.select_option("#add-room", room)
     page.click("#add-go")
