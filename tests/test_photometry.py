@@ -115,12 +115,13 @@ def test_huge_file_refused_by_size():
         parse_ies("x" * (MAX_FILE_BYTES + 1))
 
 
-def ldt_text(isym=1, lamp_flux=2000.0, gammas=None, planes=None):
+def ldt_text(isym=1, lamp_flux=2000.0, gammas=None, planes=None, lamps=1, profile=None):
     g = np.arange(0, 181, 5.0) if gammas is None else np.asarray(gammas)
     mc = 24
     c = np.arange(0, 360, 15.0)
     # cd per 1000 lm of lamp flux: a Lambertian emitter of 1000 lm has I0 = 1000/π.
-    profile = [1000 / np.pi * max(np.cos(np.radians(a)), 0) for a in g]
+    if profile is None:
+        profile = [1000 / np.pi * max(np.cos(np.radians(a)), 0) for a in g]
     nplanes = {0: mc, 1: 1, 2: mc // 2 + 1, 3: mc // 2 + 1, 4: mc // 4 + 1}[isym]
     lines = [
         "Generic maker",
@@ -156,6 +157,7 @@ def ldt_text(isym=1, lamp_flux=2000.0, gammas=None, planes=None):
         "80",
         "210",
     ]
+    lines[26] = str(lamps)  # line 27: number of lamps in the (one) lamp set
     lines += ["0.5"] * 10
     lines += [f"{a:g}" for a in c]
     lines += [f"{a:g}" for a in g]
@@ -170,6 +172,25 @@ def test_eulumdat_lambertian_flux(isym):
     assert_allclose(ph.zonal_flux, 2000.0, rtol=2e-3)  # Lambertian: Φ = π I0, I0 = 2 klm × 1000/π cd/klm
     assert ph.declared_flux == 2000.0
     assert (ph.width_m, ph.length_m) == (0.6, 0.6)
+
+
+def test_eulumdat_lamp_set_flux_is_the_sets_total():
+    """A set of 2 lamps declaring 2,000 lm in all is 2,000 lm, not 4,000 (EULUMDAT: the set's total flux;
+    format description, from memory)."""
+    ph = parse_ldt(ldt_text(1, lamps=2))
+    assert ph.declared_flux == 2000.0
+    assert_allclose(ph.zonal_flux, 2000.0, rtol=2e-3)
+
+
+def test_eulumdat_negative_intensity_refused_with_its_line():
+    g = np.arange(0, 181, 5.0)
+    profile = [1000 / np.pi * max(np.cos(np.radians(a)), 0) for a in g]
+    profile[3] = -5.0
+    text = ldt_text(1, profile=profile)
+    with pytest.raises(PhotometryError, match="negative intensity") as err:
+        parse_ldt(text)
+    bad = next(i for i, ln in enumerate(text.splitlines(), 1) if ln.strip() == "-5.00000")
+    assert err.value.line == bad
 
 
 def test_eulumdat_wrong_counts_refused():

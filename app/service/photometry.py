@@ -298,9 +298,10 @@ def parse_ldt(text: str) -> Photometry:
     flux_lamps, watts = 0.0, 0.0
     row = 27
     for s in range(sets):
-        n_lamps = num(row, f"lamp set {s + 1} count")
-        flux = num(row + 2, f"lamp set {s + 1} flux")
-        flux_lamps += abs(n_lamps) * flux if n_lamps > 0 else flux
+        num(row, f"lamp set {s + 1} count")  # read for its line; the set's flux is already its total
+        # EULUMDAT gives each lamp set's *total* luminous flux (all its lamps together), so it is never
+        # multiplied by the lamp count (format description, from memory: "total luminous flux of lamps").
+        flux_lamps += num(row + 2, f"lamp set {s + 1} flux")
         watts += num(row + 5, f"lamp set {s + 1} wattage")
         row += 6
     row += 10  # direct ratios for ten room indices
@@ -312,7 +313,11 @@ def parse_ldt(text: str) -> Photometry:
     first_plane = {0: 0, 1: 0, 2: 0, 3: mc // 4, 4: 0}[isym]
     values = []
     for p in range(planes):
-        values.append([num(row + i, f"intensity (plane {p + 1}, gamma {g_angles[i]:g})") for i in range(ng)])
+        plane = [num(row + i, f"intensity (plane {p + 1}, gamma {g_angles[i]:g})") for i in range(ng)]
+        for i, v in enumerate(plane):
+            if v < 0:  # refused as LM-63 files are: a luminous intensity cannot be negative
+                raise PhotometryError(f"negative intensity {v:g} cd/klm (plane {p + 1}, gamma {g_angles[i]:g})", row + i)
+        values.append(plane)
         row += ng
     extra = [ln for ln in lines[row - 1 :] if ln.strip()]
     if extra:
