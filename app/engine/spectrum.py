@@ -50,22 +50,32 @@ def v_lambda(wavelength_nm):
 
 
 def _grid(wavelength_nm, power):
-    """Resample a spectrum onto a 1 nm grid 380-780 (linear; zero outside the data)."""
+    """Resample a spectrum onto a 1 nm grid over its own range (linear); bands beyond the data hold nothing."""
     wl = np.asarray(wavelength_nm, float)
     p = np.asarray(power, float)
     order = np.argsort(wl)
     wl, p = wl[order], p[order]
     if wl.size < 2 or np.any(p < 0) or not np.all(np.isfinite(p)) or p.max() <= 0:
         raise ValueError("a spectrum needs at least two wavelengths, non-negative finite power and some light")
-    fine = np.arange(380.0, 781.0, 1.0)
-    return fine, np.interp(fine, wl, p, left=0.0, right=0.0)
+    if wl[0] < WAVELENGTH_RANGE_NM[0] or wl[-1] > WAVELENGTH_RANGE_NM[1]:
+        lo, hi = WAVELENGTH_RANGE_NM
+        raise ValueError(f"wavelengths must lie within {lo:g}-{hi:g} nm")
+    # The grid spans exactly the data (1 nm steps plus its own ends), so power outside the visible (an 850 nm
+    # peak) counts in the radiant watts of the efficacy ceiling, and nothing is added beyond the data's ends.
+    fine = np.unique(np.concatenate(([wl[0]], np.arange(np.ceil(wl[0]), np.floor(wl[-1]) + 1.0, 1.0), [wl[-1]])))
+    return fine, np.interp(fine, wl, p)
+
+
+WAVELENGTH_RANGE_NM = (200.0, 3000.0)  # ultraviolet to short-wave infrared: what a spectroradiometer reports
 
 
 def _integral(wl, y, lo=None, hi=None):
-    m = np.ones_like(wl, bool)
-    if lo is not None:
-        m &= (wl >= lo) & (wl <= hi)
-    return float(np.trapezoid(np.where(m, y, 0.0), wl))
+    """Trapezoidal integral of y over wl, exactly over [lo, hi] when given (edge values interpolated)."""
+    if lo is None:
+        return float(np.trapezoid(y, wl))
+    inside = (wl > lo) & (wl < hi)
+    x = np.concatenate(([lo], wl[inside], [hi]))
+    return float(np.trapezoid(np.interp(x, wl, y, left=0.0, right=0.0), x))
 
 
 def spectrum_figures(wavelength_nm, relative_power) -> dict[str, float]:

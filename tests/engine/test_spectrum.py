@@ -70,3 +70,28 @@ def test_spectrum_csv_errors_name_the_line():
         parse_spectrum_csv("nm,power\n400,1\nfour hundred,2\n")
     with pytest.raises(ValueError, match="at least two"):
         parse_spectrum_csv("400,1\n")
+
+
+def test_band_shares_integrate_exactly_over_their_band():
+    """A flat energy spectrum: photons per nm ∝ λ (Planck relation), so the 400-500 nm share of the 400-700 nm
+    photons is ∫λ dλ over each band; reference by scipy.integrate.quad, no half-nm slivers at the band edges."""
+    from scipy.integrate import quad
+
+    wl = np.arange(380.0, 781.0, 1.0)
+    fig = spectrum_figures(wl, np.ones_like(wl))
+    par = quad(lambda x: x, 400, 700)[0]
+    for band, (lo, hi) in (("blue_400_500", (400, 500)), ("red_600_700", (600, 700)), ("far_red_700_750", (700, 750))):
+        assert fig[band] == pytest.approx(quad(lambda x: x, lo, hi)[0] / par, rel=1e-9)
+
+
+def test_power_outside_the_visible_counts_in_the_ceiling():
+    """A red peak plus an equal 850 nm peak holds twice the radiant power for the same PAR photons, so its
+    µmol/J ceiling is half the red peak's (Planck relation; the issue's worked case)."""
+    wl = np.arange(600.0, 901.0, 1.0)
+    red = np.exp(-0.5 * ((wl - 660.0) / 10.0) ** 2)
+    nir = np.exp(-0.5 * ((wl - 850.0) / 10.0) ** 2)
+    alone = spectrum_figures(wl, red)["ceiling_umol_j"]
+    both = spectrum_figures(wl, red + nir)["ceiling_umol_j"]
+    assert both == pytest.approx(alone / 2, rel=1e-3)
+    with pytest.raises(ValueError, match="200-3000 nm"):
+        spectrum_figures([100.0, 500.0], [1.0, 1.0])
