@@ -170,17 +170,15 @@ def plausibility(
                 }
             )
     if claimed_ppf_umol_s and power_w:
-        efficacy = efficacy_findings(claimed_ppf_umol_s, power_w, ceiling_umol_j)
-        if any(f["level"] == "impossible" for f in out):
-            # The claim's efficacy may be plausible while the map is not: never let the one read as the other.
-            for f in efficacy:
-                if f["code"] == "efficacy":
-                    f["message"] = f"The claimed figures alone give {f['message'][:-1]}, but the map above does not fit them."
-        out += efficacy
+        # The claim's efficacy may be plausible while the map is not: never let the one read as the other.
+        map_impossible = any(f["level"] == "impossible" for f in out)
+        out += efficacy_findings(claimed_ppf_umol_s, power_w, ceiling_umol_j, map_impossible=map_impossible)
     return out
 
 
-def efficacy_findings(ppf_umol_s: float, power_w: float, ceiling_umol_j: float | None = None) -> list[dict]:
+def efficacy_findings(
+    ppf_umol_s: float, power_w: float, ceiling_umol_j: float | None = None, *, map_impossible: bool = False
+) -> list[dict]:
     """PPF per watt against the photon ceiling (Planck relation) and the best measured fixtures."""
     out = []
     eff = ppf_umol_s / power_w
@@ -207,6 +205,15 @@ def efficacy_findings(ppf_umol_s: float, power_w: float, ceiling_umol_j: float |
         )
     else:
         out.append(
-            {"level": "info", "code": "efficacy", "message": f"{eff:.2f} µmol/J: within what measured fixtures reach."}
+            {
+                "level": "info",
+                "code": "efficacy",
+                "message": (
+                    f"The claimed figures alone give {eff:.2f} µmol/J: within what measured fixtures reach, "
+                    "but the map above does not fit them."
+                    if map_impossible
+                    else f"{eff:.2f} µmol/J: within what measured fixtures reach."
+                ),
+            }
         )
     return out
