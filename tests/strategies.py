@@ -13,6 +13,7 @@ import math
 from hypothesis import strategies as st
 
 from app.room import layout
+from app.room.models import Geometry
 from tests.conftest import sample_doc
 
 SAMPLE_NAMES = ("hobby-tent-peppers", "research-chamber-metric", "three-tier-greens-rack", "basement-two-benches")
@@ -30,9 +31,9 @@ def valid_room_docs(draw, names=SAMPLE_NAMES) -> dict:
     for f in room["fixtures"]:
         f["dimming_pct"] = draw(st.floats(10, 100).map(lambda d: round(d, 1)))
         f["on"] = draw(st.booleans())
-        g = types[f["type_id"]]["geometry"]
-        # The layout rule's own footprint (a single bar is as wide as its bar), so the walls rule agrees.
-        size = layout.footprint_size_m(_Zone({"bar_width_m": g["width_m"], **g}))
+        # The layout rule's own footprint of the validated geometry (a single bar is as wide as its bar), so the
+        # walls rule the server applies agrees.
+        size = layout.footprint_size_m(Geometry.model_validate(types[f["type_id"]]["geometry"]))
         hx, hy = layout.rotated_half_extent_m(*size, f["rotation_deg"])
         lit = layout.zone_lit_by(zones, _Fixture(f))
         # Move it within the zone it lights (or the room), keeping its footprint inside the walls.

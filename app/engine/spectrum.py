@@ -49,6 +49,9 @@ def v_lambda(wavelength_nm):
     return np.interp(wavelength_nm, wl, v, left=0.0, right=0.0)
 
 
+WAVELENGTH_RANGE_NM = (200.0, 3000.0)  # ultraviolet to short-wave infrared: what a spectroradiometer reports
+
+
 def _grid(wavelength_nm, power):
     """Resample a spectrum onto a 1 nm grid over its own range (linear); bands beyond the data hold nothing."""
     wl = np.asarray(wavelength_nm, float)
@@ -64,9 +67,6 @@ def _grid(wavelength_nm, power):
     # peak) counts in the radiant watts of the efficacy ceiling, and nothing is added beyond the data's ends.
     fine = np.unique(np.concatenate(([wl[0]], np.arange(np.ceil(wl[0]), np.floor(wl[-1]) + 1.0, 1.0), [wl[-1]])))
     return fine, np.interp(fine, wl, p)
-
-
-WAVELENGTH_RANGE_NM = (200.0, 3000.0)  # ultraviolet to short-wave infrared: what a spectroradiometer reports
 
 
 def _integral(wl, y, lo=None, hi=None):
