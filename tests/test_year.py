@@ -334,3 +334,21 @@ def test_payback_takes_the_fixture_types_maintenance_record(bench_doc):
     assert_allclose(
         v["now"]["mol_by_year"][0], v["now"]["mol_year_first"] * (1 - np.exp(-a * hours)) / (a * hours), rtol=1e-6
     )
+
+
+@pytest.mark.parametrize("path", ["/api/rooms/{id}/year", "/rooms/{id}/year?format=json", "/rooms/{id}/year"])
+def test_year_with_a_payback_plan_and_every_fixture_off(client, bench_doc, path):
+    # Bug: no photons made the cost per mole infinite, which JSON cannot carry; the page's JSON answered 500.
+    doc = copy.deepcopy(bench_doc)
+    assert doc["room"]["payback"] is not None
+    for f in doc["room"]["fixtures"]:
+        f["on"] = False
+    room_id = client.post("/api/rooms", json=doc).json()["id"]
+    r = client.get(path.format(id=room_id))
+    assert r.status_code == 200, r.text[:300]
+    if "html" not in r.headers["content-type"]:
+        p = r.json()["payback"]
+        # No light delivered: zero photons over the horizon, so no cost per mole (by hand: 0 mol).
+        assert p["now"]["mol_by_year"] == [0.0] * p["horizon_years"]
+        assert p["now"]["cost_per_mol"] is None and p["variant"]["cost_per_mol"] is None
+        assert p["years"] is None  # nothing saved, the purchase never pays back

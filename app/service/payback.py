@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import math
 from typing import Any
 
 from app.engine import maintenance as mt
@@ -114,12 +115,12 @@ def payback_report(room_file: RoomFile) -> dict[str, Any] | None:
         "now": {
             **now,
             "mol_by_year": mol_now.tolist(),
-            "cost_per_mol": pb.cost_per_mol(0.0, [now["cost_year"]] * years, mol_now),
+            "cost_per_mol": _finite_or_none(pb.cost_per_mol(0.0, [now["cost_year"]] * years, mol_now)),
         },
         "variant": {
             **var,
             "mol_by_year": mol_var.tolist(),
-            "cost_per_mol": pb.cost_per_mol(purchase, [var["cost_year"]] * years, mol_var),
+            "cost_per_mol": _finite_or_none(pb.cost_per_mol(purchase, [var["cost_year"]] * years, mol_var)),
             "dimming_pct": sorted({f.dimming_pct for f in variant.room.fixtures if f.id in replaced}),
         },
         "maintenance_now": proj_now.source,
@@ -131,6 +132,12 @@ def payback_report(room_file: RoomFile) -> dict[str, Any] | None:
         **result,
         "currency": room_file.room.schedule.currency,
     }
+
+
+def _finite_or_none(value: float) -> float | None:
+    # No photons delivered (every fixture off) makes the cost per mole infinite, which JSON cannot carry:
+    # the page's ?format=json answered 500. None reads as "no light, no cost per mole".
+    return value if math.isfinite(value) else None
 
 
 def _projection(rated_l90_h: float | None, fixture_type) -> mt.Projection:

@@ -109,6 +109,8 @@ window.LeafcastPayback = function (page, h) {
     { margin: { t: 10, r: 10, b: 40, l: 60 }, xaxis: { title: { text: "end of year" }, dtick: 1 }, yaxis: { title: { text: `balance (${cur})` } } }, PLOT);
   const n = r.now, v = r.variant;
   const sum = (a) => a.reduce((s, x) => s + x, 0);
+  // null: no photons reach the canopy (every fixture off), so there is no cost per mole
+  const perMol = (c, cur) => (c === null ? "no light delivered" : `${fmt(c * 100, 3)} ${esc(cur)}`);
   $("payback-table").innerHTML = `<p><strong>${r.years === null ? `Does not pay back within ${r.horizon_years} years` : `Pays back in ${fmt(r.years, 1)} years`}</strong> (${r.replaced.length} fixtures to ${esc(r.variant_type_name)}, ${fmt(r.purchase_cost, 2)} ${esc(cur)}; saving ${fmt(r.yearly_saving, 2)} ${esc(cur)} a year${r.discount_rate ? `, discounted at ${fmt(r.discount_rate * 100, 1)} %` : ""}).</p>`
     + table(["", "Today", "With the change"], [
       ["Input power", `${fmt(n.power_w)} W`, `${fmt(v.power_w)} W${r.match_light ? ` (dimmed to ${v.dimming_pct.map((x) => fmt(x, 1) + " %").join(", ")})` : ""}`],
@@ -116,7 +118,7 @@ window.LeafcastPayback = function (page, h) {
       ["Energy a year", `${fmt(n.kwh_year)} kWh`, `${fmt(v.kwh_year)} kWh`],
       ["Running cost a year", `${fmt(n.cost_year, 2)} ${esc(cur)}`, `${fmt(v.cost_year, 2)} ${esc(cur)}`],
       [`Photons over ${r.horizon_years} years (with ageing)`, `${fmt(sum(n.mol_by_year))} mol`, `${fmt(sum(v.mol_by_year))} mol`],
-      ["Cost per 100 mol (purchase included)", `${fmt(n.cost_per_mol * 100, 3)} ${esc(cur)}`, `${fmt(v.cost_per_mol * 100, 3)} ${esc(cur)}`],
+      ["Cost per 100 mol (purchase included)", perMol(n.cost_per_mol, cur), perMol(v.cost_per_mol, cur)],
       ["Output over the years", esc(r.maintenance_now) + ` (from ${fmt(r.hours_run_now)} h run)`, esc(r.maintenance_variant)],
     ].map((row) => `<tr>${row.map((c) => `<td>${c}</td>`).join("")}</tr>`));
 };
