@@ -2,20 +2,19 @@
 
 from __future__ import annotations
 
-from typing import Any
-
 from fastapi import APIRouter
 
 from app.room.library import crop_library, fixture_library
+from app.room.models import Crop, FixtureType
 
 router = APIRouter(prefix="/api/library", tags=["library"])
 
 
-@router.get("/fixtures")
-def fixture_types() -> list[dict[str, Any]]:
-    return [t.model_dump(mode="json") for t in fixture_library().values()]
+@router.get("/fixtures", summary="The built-in fixture types")
+def fixture_types() -> list[FixtureType]:
+    return list(fixture_library().values())
 
 
-@router.get("/crops")
-def crops() -> list[dict[str, Any]]:
-    return [c.model_dump(mode="json") for c in crop_library().values()]
+@router.get("/crops", summary="The built-in crops and their DLI bands")
+def crops() -> list[Crop]:
+    return list(crop_library().values())

@@ -39,7 +39,9 @@ def _job_or_404(request: Request, job_id: str):
 def start_plan(request: Request, room_id: str, body: PlanIn) -> JobStarted:
     rf = load_room(store_of(request), room_id)
     within_budget(request, rf)
-    unknown = [t for t in body.type_ids if t not in fixture_library() and t not in {x.id for x in rf.room.fixture_types}]
+    unknown = [
+        t for t in body.type_ids if t not in fixture_library() and t not in {x.id for x in rf.room.fixture_types}
+    ]
     if unknown:
         raise ApiError(422, "invalid_request", f"type_ids: no fixture type '{unknown[0]}'")
     opts = PlanOptions(

@@ -2,16 +2,14 @@
 
 from __future__ import annotations
 
-from typing import Any
-
 from fastapi import APIRouter, Request
-from fastapi.responses import Response
+from fastapi.responses import JSONResponse, Response
 from pydantic import BaseModel
 from starlette.concurrency import run_in_threadpool
 
 from app.room.roomfile import dump_room_file, to_json_bytes
 from app.room.storage import RoomNotFound, StaleRevision
-from app.web.bodies import ROOM_BODY, room_from_body
+from app.web.bodies import ROOM_BODY, ROOM_RESPONSE, room_from_body
 from app.web.deps import load_room, store_of
 from app.web.errors import ERRORS, not_found, stale_revision
 
@@ -74,9 +72,9 @@ def _import(store, rf):
     return store.create(rf)
 
 
-@router.get("/{room_id}", responses=ERRORS, summary="Read a room file")
-def read_room(request: Request, room_id: str) -> dict[str, Any]:
-    return dump_room_file(load_room(store_of(request), room_id))
+@router.get("/{room_id}", response_model=None, responses={**ERRORS, **ROOM_RESPONSE}, summary="Read a room file")
+def read_room(request: Request, room_id: str) -> JSONResponse:
+    return JSONResponse(dump_room_file(load_room(store_of(request), room_id)))
 
 
 @router.put(
@@ -122,7 +120,7 @@ def delete_room(request: Request, room_id: str):
     return Response(status_code=204)
 
 
-@router.get("/{room_id}/file", responses=ERRORS, summary="Download the room file")
+@router.get("/{room_id}/file", responses={**ERRORS, **ROOM_RESPONSE}, summary="Download the room file")
 def export_room(request: Request, room_id: str):
     rf = load_room(store_of(request), room_id)
     return Response(

@@ -35,4 +35,6 @@ def plan_as_dxf(
         raise ApiError(422, "bad_query", f"tier: this room has {n} tier(s)", [Problem("tier", f"must be 1-{n}")])
     body = plan_dxf(rf.room, tier)
     name = dxf_filename(rf.room.name, tier)
-    return Response(body, media_type="application/dxf", headers={"Content-Disposition": f'attachment; filename="{name}"'})
+    return Response(
+        body, media_type="application/dxf", headers={"Content-Disposition": f'attachment; filename="{name}"'}
+    )

@@ -11,6 +11,7 @@ from app.room.storage import RoomNotFound
 from app.web import views
 from app.web.deps import analysed, load_room, render, store_of
 from app.web.errors import ERRORS, not_found
+from app.web.routes.rooms import RoomSummaryOut
 
 router = APIRouter(tags=["rooms"])
 
@@ -82,8 +83,8 @@ def trash_room(request: Request, room_id: str):
     return {"id": room_id, "name": rf.room.name, "revision": rf.revision}
 
 
-@router.get("/api/trash", summary="Rooms in the trash")
-def list_trash(request: Request) -> list[dict]:
+@router.get("/api/trash", response_model=list[RoomSummaryOut], summary="Rooms in the trash")
+def list_trash(request: Request):
     return [s.__dict__ for s in store_of(request).trashed()]
 
 
