@@ -16,9 +16,10 @@ def test_year_page_edit_save_and_undo(live_server, page, artifacts):
     page.screenshot(path=str(artifacts / "year.png"), full_page=True)
     page.locator("section[aria-labelledby=cycle-title]").screenshot(path=str(artifacts / "year-cycle.png"))
     assert "Pays back in" in page.locator("#payback-table").inner_text()
-    # Metric room: heights are typed in cm. Lower the last step's dimming and save.
+    # Metric room: heights are shown as they can be typed back (lib/units.js lengthInput). Lower the last step's
+    # dimming and save: the height box's text is read back as the same height.
     last = page.locator("#cycle-steps-0 tr[data-step='2']")
-    assert last.locator("[name=fixture_height_m]").input_value() == "170"
+    assert last.locator("[name=fixture_height_m]").input_value() == "1.7 m"
     last.locator("[name=dimming_pct]").fill("55")
     # Wait for the save itself: the page reloads onto the same address, so waiting for the URL proves nothing.
     with page.expect_response(lambda r: r.request.method == "PUT" and r.url.endswith(f"/api/rooms/{room}")) as put:
@@ -29,6 +30,8 @@ def test_year_page_edit_save_and_undo(live_server, page, artifacts):
     saved = api(live_server, f"/api/rooms/{room}")
     assert saved["revision"] == before["revision"] + 1
     assert saved["room"]["zones"][0]["cycle"]["steps"][2]["dimming_pct"] == 55
+    height_before = before["room"]["zones"][0]["cycle"]["steps"][2]["fixture_height_m"]
+    assert saved["room"]["zones"][0]["cycle"]["steps"][2]["fixture_height_m"] == pytest.approx(height_before, abs=1e-9)
     # A bad value is refused in the page with the field named, and nothing is saved.
     page.locator("#cycle-steps-0 tr[data-step='1'] [name=canopy_height_m]").fill("tall")
     page.click("#cycle-steps-0 [data-save-cycle]")

@@ -16,6 +16,7 @@ import { renderZones, renderObstacles, wireZonePanels } from "./panels/zones.js"
 import { wireDrawer, showTab } from "./drawer.js";
 import { renderTypes } from "./panels/types.js";
 import { prefetch, startPreview, previewDrag, endPreview } from "./preview.js";
+import "./meter_links.js";
 
 window.leafcast = state; // a read-only handle for the browser tests, the benchmark and the curious
 

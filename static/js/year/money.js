@@ -1,7 +1,6 @@
 // The money parts of the cycle-and-year page: the time-of-use tariff and the payback of a change.
-// Loaded before year.js, which calls these with the page data and its helpers.
-"use strict";
-window.LeafcastTariff = function (page, h) {
+// main.js calls these with the page data and its helpers.
+export function tariff(page, h) {
   const { $, fmt, esc, clock, table, num, save, DAYS, PLOT } = h;
   const room = page.room_file.room;
   const t = room.schedule.tariff;
@@ -57,7 +56,7 @@ window.LeafcastTariff = function (page, h) {
     band(z.lights_on_now_h, z.photoperiod_h, "#6b8bb5", k * slot, (k + 1) * slot);
     if (z.best) band(z.best.lights_on_h, z.photoperiod_h, "#2f6d3a", 0.5 + k * slot, 0.5 + (k + 1) * slot);
   });
-  Plotly.newPlot("tariff-plot", [
+  window.Plotly.newPlot("tariff-plot", [
     { x: hours, y: line(0), mode: "lines", line: { shape: "hv", color: "#b3261e" }, name: "Monday price" },
     { x: hours, y: line(5), mode: "lines", line: { shape: "hv", color: "#555", dash: "dot" }, name: "Saturday price" },
   ], { shapes, margin: { t: 10, r: 10, b: 40, l: 55 }, xaxis: { title: { text: "hour of the day (lights now: blue band, cheapest: green band)" }, dtick: 2, range: [0, 24] }, yaxis: { title: { text: `${cur}/kWh` }, rangemode: "tozero" }, legend: { orientation: "h", y: -0.3 } }, PLOT);
@@ -65,9 +64,9 @@ window.LeafcastTariff = function (page, h) {
     r.zones.map((z) => `<tr><td>${esc(z.zone_name)}</td><td>${fmt(z.power_w)} W × ${fmt(z.photoperiod_h, 2)} h</td><td>${clock(z.lights_on_now_h)}–${clock(z.lights_on_now_h + z.photoperiod_h)}</td><td>${fmt(z.cost_now_per_month, 2)}</td>
       ${z.best ? `<td>${clock(z.best.lights_on_h)}–${clock(z.best.lights_off_h)}</td><td>${fmt(z.best.dark_h, 2)} h${z.why ? ` (${esc(z.why)})` : ""}</td><td>${fmt(z.best.cost_per_month, 2)}${z.best.demand_cost_per_month ? ` incl. demand ${fmt(z.best.demand_cost_per_month, 2)}` : ""}</td><td>${fmt(z.saving_per_month, 2)} / ${fmt(z.saving_per_year, 2)}</td>` : `<td colspan="4" class="bad">${esc(z.problem)}</td>`}</tr>`))
     + `<p>Saving for the room: ${fmt(r.saving_per_month, 2)} ${esc(cur)} a month, ${fmt(r.saving_per_year, 2)} ${esc(cur)} a year.${r.demand_charge_per_kw ? " The demand charge is counted per zone: the room's real peak when the zones' light periods overlap, an upper bound when they do not." : ""}</p>`;
-};
+}
 
-window.LeafcastPayback = function (page, h) {
+export function payback(page, h) {
   const { $, fmt, esc, table, num, save, PLOT } = h;
   const room = page.room_file.room;
   const plan = room.payback;
@@ -105,7 +104,7 @@ window.LeafcastPayback = function (page, h) {
   const r = page.payback;
   if (!r || r.problem) { $("payback-table").innerHTML = r ? `<p class="bad">${esc(r.problem)}</p>` : ""; return; }
   const years = r.cumulative.map((_, k) => k + 1);
-  Plotly.newPlot("payback-plot", [{ x: [0].concat(years), y: [-r.purchase_cost].concat(r.cumulative), type: "bar", marker: { color: [-r.purchase_cost].concat(r.cumulative).map((v) => (v >= 0 ? "#2f6d3a" : "#b3261e")) }, name: "balance" }],
+  window.Plotly.newPlot("payback-plot", [{ x: [0].concat(years), y: [-r.purchase_cost].concat(r.cumulative), type: "bar", marker: { color: [-r.purchase_cost].concat(r.cumulative).map((v) => (v >= 0 ? "#2f6d3a" : "#b3261e")) }, name: "balance" }],
     { margin: { t: 10, r: 10, b: 40, l: 60 }, xaxis: { title: { text: "end of year" }, dtick: 1 }, yaxis: { title: { text: `balance (${cur})` } } }, PLOT);
   const n = r.now, v = r.variant;
   const sum = (a) => a.reduce((s, x) => s + x, 0);
@@ -121,4 +120,4 @@ window.LeafcastPayback = function (page, h) {
       ["Cost per 100 mol (purchase included)", perMol(n.cost_per_mol, cur), perMol(v.cost_per_mol, cur)],
       ["Output over the years", esc(r.maintenance_now) + ` (from ${fmt(r.hours_run_now)} h run)`, esc(r.maintenance_variant)],
     ].map((row) => `<tr>${row.map((c) => `<td>${c}</td>`).join("")}</tr>`));
-};
+}

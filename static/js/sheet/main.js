@@ -1,3 +1,2 @@
 // The layout sheet's print button (no inline handlers: the CSP allows no inline script).
-"use strict";
 document.getElementById("print-sheet").addEventListener("click", () => window.print());
