@@ -253,3 +253,46 @@ def test_api_import_fit_and_spectrum(client):
     assert s.status_code == 200 and s.json()["red_600_700"] > 0.99
     assert client.post("/api/photometry/spectrum", json={}).status_code == 422
     assert client.get("/fixtures/new").status_code == 200
+
+
+def _line_holding(lines, token, start=0):
+    """1-based number of the first line at or after start whose values include token."""
+    return next(i + 1 for i, line in enumerate(lines) if i >= start and token in line.split())
+
+
+def test_negative_candela_names_its_own_line():
+    v = np.arange(0, 91, 2.5)
+    table = [[I0 * np.cos(np.radians(a)) for a in v]]
+    table[0][25] = -7.0  # the 26th value: on the third wrapped line of the row, not where the table starts
+    lines = ies_text(table=table).splitlines()
+    with pytest.raises(
+        PhotometryError, match=r"negative candela value -7 \(horizontal angle 0, vertical angle 62.5\)"
+    ) as exc:
+        parse_ies("\n".join(lines))
+    assert exc.value.line == _line_holding(lines, "-7.0000")
+
+
+def test_descending_angles_name_their_own_line():
+    # Vertical angles: 5 before 2.5 on the vertical-angle line.
+    lines = ies_text(horizontal=(0, 45, 90)).splitlines()
+    v_line = _line_holding(lines, "87.5")
+    lines[v_line - 1] = lines[v_line - 1].replace("0 2.5 5 ", "0 5 2.5 ", 1)
+    with pytest.raises(PhotometryError, match=r"vertical angles must rise.*angle 3 is 2.5") as exc:
+        parse_ies("\n".join(lines))
+    assert exc.value.line == v_line
+    # Horizontal angles on a line of their own, after the vertical ones: the error points there.
+    lines = ies_text(horizontal=(0, 45, 90)).splitlines()
+    h_line = lines.index("0 45 90") + 1
+    lines[h_line - 1] = "0 90 45"
+    with pytest.raises(PhotometryError, match=r"horizontal angles must rise \(angle 3 is 45 after 90\)") as exc:
+        parse_ies("\n".join(lines))
+    assert exc.value.line == h_line
+    # Vertical angles split over two lines: the fault on the second is reported there.
+    lines = ies_text().splitlines()
+    v_line = _line_holding(lines, "87.5")
+    vals = lines[v_line - 1].split()
+    vals[30] = "10"  # 75 -> 10, on the continuation line
+    split = lines[: v_line - 1] + [" ".join(vals[:20]), " ".join(vals[20:])] + lines[v_line:]
+    with pytest.raises(PhotometryError, match=r"angle 31 is 10") as exc:
+        parse_ies("\n".join(split))
+    assert exc.value.line == v_line + 1
