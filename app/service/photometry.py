@@ -401,10 +401,12 @@ def fixture_type_from(
     if polar[-1] < 90:  # close the table at the horizon
         polar.append(90.0)
         table = [[*r, 0.0] for r in table]
-    size = (ph.length_m, ph.width_m)
+    # LM-63 (and EULUMDAT) give the opening's length along the C0-C180 photometric axis and its width along
+    # C90-C270; the engine's local x is azimuth 0, so the length goes there even when it is the shorter side
+    # (laying the longer side along x would turn the opening 90 deg against its own candela table).
     geometry = (
-        {"kind": "panel", "length_m": round(max(size), 4), "width_m": round(min(size), 4)}
-        if min(size) > 0
+        {"kind": "panel", "length_m": round(ph.length_m, 4), "width_m": round(ph.width_m, 4)}
+        if min(ph.length_m, ph.width_m) > 0
         else {"kind": "point"}
     )
     ftype = {
