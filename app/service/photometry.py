@@ -218,16 +218,31 @@ def parse_ies(text: str) -> Photometry:
     ballast = toks.number("ballast factor")
     ballast_lamp = toks.number("ballast-lamp photometric factor" if version == "LM-63-1995" else "future use")
     watts = toks.number("input watts")
+    v_at = toks.pos
     v = toks.numbers(nv, "vertical angle")
+    h_at = toks.pos
     h = toks.numbers(nh, "horizontal angle")
-    if any(b <= a for a, b in zip(v, v[1:], strict=False)) or v[0] < 0 or v[-1] > 180:
-        raise PhotometryError("vertical angles must rise within 0-180", line_v)
+
+    def line_of(pos: int) -> int:
+        return toks.items[pos][0]
+
+    # Each error names the line of the value at fault, not the line the table started on.
+    bad_v = next((i for i, a in enumerate(v) if a < 0 or a > 180 or (i and a <= v[i - 1])), None)
+    if bad_v is not None:
+        raise PhotometryError(
+            f"vertical angles must rise within 0-180 (angle {bad_v + 1} is {v[bad_v]:g})", line_of(v_at + bad_v)
+        )
     if v[0] >= 90:
         raise PhotometryError(
-            "the table holds only upward light (vertical angles from 90); a grow light aims down", line_v
+            "the table holds only upward light (vertical angles from 90); a grow light aims down", line_of(v_at)
         )
-    if any(b <= a for a, b in zip(h, h[1:], strict=False)):
-        raise PhotometryError("horizontal angles must rise", line_v)
+    bad_h = next((i for i in range(1, nh) if h[i] <= h[i - 1]), None)
+    if bad_h is not None:
+        raise PhotometryError(
+            f"horizontal angles must rise (angle {bad_h + 1} is {h[bad_h]:g} after {h[bad_h - 1]:g})",
+            line_of(h_at + bad_h),
+        )
+    cd_at = toks.pos
     rows = []
     for i in range(nh):
         rows.append(
@@ -239,8 +254,13 @@ def parse_ies(text: str) -> Photometry:
     if toks.pos < len(toks.items):
         n, t = toks.items[toks.pos]
         raise PhotometryError(f"unexpected value {t!r} after the candela table (wrong counts?)", n)
-    if any(c < 0 for r in rows for c in r):
-        raise PhotometryError("negative candela values")
+    bad_cd = next(((i, j) for i, r in enumerate(rows) for j, c in enumerate(r) if c < 0), None)
+    if bad_cd is not None:
+        i, j = bad_cd
+        raise PhotometryError(
+            f"negative candela value {rows[i][j]:g} (horizontal angle {h[i]:g}, vertical angle {v[j]:g})",
+            line_of(cd_at + i * nv + j),
+        )
     if v[0] > 0:  # tables starting below nadir: start the interpolant at nadir with the first value
         v = [0.0, *v]
         rows = [[r[0], *r] for r in rows]
@@ -316,7 +336,9 @@ def parse_ldt(text: str) -> Photometry:
         plane = [num(row + i, f"intensity (plane {p + 1}, gamma {g_angles[i]:g})") for i in range(ng)]
         for i, v in enumerate(plane):
             if v < 0:  # refused as LM-63 files are: a luminous intensity cannot be negative
-                raise PhotometryError(f"negative intensity {v:g} cd/klm (plane {p + 1}, gamma {g_angles[i]:g})", row + i)
+                raise PhotometryError(
+                    f"negative intensity {v:g} cd/klm (plane {p + 1}, gamma {g_angles[i]:g})", row + i
+                )
         values.append(plane)
         row += ng
     extra = [ln for ln in lines[row - 1 :] if ln.strip()]
@@ -379,10 +401,12 @@ def fixture_type_from(
     if polar[-1] < 90:  # close the table at the horizon
         polar.append(90.0)
         table = [[*r, 0.0] for r in table]
-    size = (ph.length_m, ph.width_m)
+    # LM-63 (and EULUMDAT) give the opening's length along the C0-C180 photometric axis and its width along
+    # C90-C270; the engine's local x is azimuth 0, so the length goes there even when it is the shorter side
+    # (laying the longer side along x would turn the opening 90 deg against its own candela table).
     geometry = (
-        {"kind": "panel", "length_m": round(max(size), 4), "width_m": round(min(size), 4)}
-        if min(size) > 0
+        {"kind": "panel", "length_m": round(ph.length_m, 4), "width_m": round(ph.width_m, 4)}
+        if min(ph.length_m, ph.width_m) > 0
         else {"kind": "point"}
     )
     ftype = {
