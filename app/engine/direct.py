@@ -158,18 +158,26 @@ def nearest_distance_m(emitter: Emitter, grid: Grid) -> float:
 
 
 def relevant_boxes(emitter: Emitter, grid: Grid, boxes: tuple[Box, ...], reach_m: float) -> tuple[Box, ...]:
-    """Boxes that can stand between the emitter and the grid (z between them, within reach)."""
+    """Boxes that can stand between the emitter and the grid (z between them, within reach).
+
+    Every segment runs from a node on the emitter's face to a grid point within reach, so it lies
+    in the bounding box of the emitter's face and the reached part of the grid. A box beside the
+    grid, between it and an emitter off to the side, is inside that box and is kept.
+    """
     lo_z, hi_z = grid.z_m, emitter.z_m
+    half = 0.5 * emitter.largest_dimension_m
+    # The reached part of the grid, then grown to take in the emitter's face.
+    gx0, gx1 = max(grid.x0_m, emitter.x_m - reach_m), min(grid.x0_m + grid.width_m, emitter.x_m + reach_m)
+    gy0, gy1 = max(grid.y0_m, emitter.y_m - reach_m), min(grid.y0_m + grid.length_m, emitter.y_m + reach_m)
+    if gx0 > gx1 or gy0 > gy1:
+        return ()
+    x0, x1 = min(gx0, emitter.x_m - half), max(gx1, emitter.x_m + half)
+    y0, y1 = min(gy0, emitter.y_m - half), max(gy1, emitter.y_m + half)
     out = []
     for b in boxes:
         if b.z1_m <= lo_z + 1e-9 or b.z0_m >= hi_z - 1e-9:
             continue
-        if (
-            b.x1_m < max(grid.x0_m, emitter.x_m - reach_m)
-            or b.x0_m > min(grid.x0_m + grid.width_m, emitter.x_m + reach_m)
-            or b.y1_m < max(grid.y0_m, emitter.y_m - reach_m)
-            or b.y0_m > min(grid.y0_m + grid.length_m, emitter.y_m + reach_m)
-        ):
+        if b.x1_m < x0 or b.x0_m > x1 or b.y1_m < y0 or b.y0_m > y1:
             continue
         out.append(b)
     return tuple(out)

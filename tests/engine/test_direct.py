@@ -159,3 +159,54 @@ def test_narrow_beam_close_to_the_plane_does_not_overflow():
         e = irradiance_from_nodes(pts, np.array([[0.0, 0.0, h]]), np.array([1.0]), cosine_power(n), 0.0)
     d = np.hypot(pts[:, 0], h)
     assert_allclose(e, (n + 1) / (2 * np.pi) * (h / d) ** (n + 1) / d**2, rtol=1e-9)
+
+
+def _segment_hits_box(q, p, box):
+    """Independent slab test (Kay & Kajiya 1986): does the open segment q→p pass through the box's inside?"""
+    lo, hi = np.array(box[:3]), np.array(box[3:])
+    d = p - q
+    t0, t1 = 0.0, 1.0
+    for k in range(3):
+        if abs(d[k]) < 1e-15:
+            if not (lo[k] < q[k] < hi[k]):
+                return False
+            continue
+        a, b = sorted(((lo[k] - q[k]) / d[k], (hi[k] - q[k]) / d[k]))
+        t0, t1 = max(t0, a), min(t1, b)
+    return t1 - t0 > 1e-9
+
+
+def test_wall_beside_the_zone_shades_an_off_zone_fixture():
+    # A tall wall standing beside the zone (outside its footprint) between the zone and a fixture hung off
+    # to the side: the zone gets only the fixture above it. Point Lambertian source: E = (Φ/π) h² / d⁴
+    # (inverse-square and Lambert cosine laws, I = Φ/π · cos θ).
+    g = Grid("g", 0.0, 0.0, 1.0, 1.0, 0.0, 0.1)
+    above = Emitter("a", 0.5, 0.5, 1.0, 300.0, lambertian())
+    beside = Emitter("b", -1.0, 0.5, 1.0, 300.0, lambertian())
+    wall = Box(-0.3, -5.0, -0.1, -0.1, 5.0, 2.0)
+    total = full_map(above, g, (wall,)) + full_map(beside, g, (wall,))
+    gx, gy = np.meshgrid(g.x_m, g.y_m)
+    d2 = (gx - 0.5) ** 2 + (gy - 0.5) ** 2 + 1.0
+    expected = 300.0 / np.pi / d2**2
+    assert_allclose(total, expected, rtol=1e-6)
+    assert full_map(beside, g).min() > 3.0  # without the wall the side fixture does light the zone
+
+
+def test_low_wall_beside_the_zone_matches_brute_force_point_shadow():
+    # A lower wall beside the zone shades only the zone's near edge: every point compared with a
+    # brute-force point-source sum that tests each fixture-to-point ray against the box itself.
+    g = Grid("g", 0.0, 0.0, 1.0, 1.0, 0.0, 0.05)
+    beside = Emitter("b", -0.8, 0.3, 1.2, 300.0, lambertian())
+    wall = (-0.25, 0.0, 0.0, -0.05, 0.8, 0.5)
+    got = full_map(beside, g, (Box(*wall),))
+    q = np.array([beside.x_m, beside.y_m, beside.z_m])
+    ref = np.zeros_like(got)
+    for j, y in enumerate(g.y_m):
+        for i, x in enumerate(g.x_m):
+            p = np.array([x, y, 0.0])
+            if not _segment_hits_box(q, p, wall):
+                d2 = float(np.sum((p - q) ** 2))
+                ref[j, i] = 300.0 / np.pi * (q[2] / np.sqrt(d2)) ** 2 / d2
+    shaded = ref == 0.0
+    assert 0.05 < shaded.mean() < 0.6  # the scene does put part of the zone in shade
+    assert_allclose(got, ref, rtol=1e-6, atol=1e-9)
