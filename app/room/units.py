@@ -1,6 +1,6 @@
 """Display units and the one rounding rule for every figure Leafcast shows. Stored values are always SI.
 
-The rule (the editor's ``static/units.js`` follows the same one):
+The rule (``static/js/lib/units.js`` follows the same one):
 
 - a figure is rounded **half away from zero** on its shortest decimal form (what ``repr`` prints), so
   5.25 shows as 5.3 and −5.25 as −5.3, whatever the binary float underneath;
