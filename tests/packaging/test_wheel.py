@@ -6,6 +6,7 @@ Needs the package registry (or pip's cache) for the dependencies, as `make test`
 from __future__ import annotations
 
 import json
+import os
 import subprocess
 import sys
 import time
@@ -47,18 +48,20 @@ def test_installed_wheel_serves_pages_outside_the_checkout(wheel, tmp_path):
     venv = tmp_path / "venv"
     subprocess.run([sys.executable, "-m", "venv", str(venv)], check=True)
     py = venv / "bin" / "python"
+    # The installed wheel alone: a PYTHONPATH pointing at a checkout would hide a missing file.
+    env = {k: v for k, v in os.environ.items() if k != "PYTHONPATH"}
     subprocess.run([str(py), "-m", "pip", "install", "-q", str(wheel)], check=True, timeout=900)
     work = tmp_path / "elsewhere"
     work.mkdir()
     where = subprocess.run(
         [str(py), "-c", "import app, app.assets; print(app.__file__); print(app.assets.asset_dir('static'))"],
-        cwd=work, capture_output=True, text=True, check=True,
+        cwd=work, capture_output=True, text=True, check=True, env=env,
     ).stdout.split()
     assert str(ROOT) not in where[0] and str(ROOT) not in where[1], where
     port = _free_port()
     proc = subprocess.Popen(
         [str(venv / "bin" / "leafcast"), "serve", "--port", str(port), "--data-dir", str(tmp_path / "data")],
-        cwd=work, stdout=subprocess.PIPE, stderr=subprocess.STDOUT,
+        cwd=work, stdout=subprocess.PIPE, stderr=subprocess.STDOUT, env=env,
     )
     base = f"http://127.0.0.1:{port}"
     try:
