@@ -5,7 +5,7 @@ import pytest
 from numpy.testing import assert_allclose
 
 from app.engine.formfactors import element_to_polygon
-from app.engine.reflections import EXACT_WITHIN_SIZES
+from app.engine.patch_transfer import EXACT_WITHIN_SIZES
 
 
 def howell_b3(a, b, c):
