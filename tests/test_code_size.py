@@ -26,8 +26,6 @@ ALLOWED: dict[str, tuple[int, str]] = {
     "app/bench.py": (435, "benchmark scenes and runner in one module; to split into scenes and runner"),
     "app/bench.py::main": (88, "argument parsing and every benchmark step in one function"),
     "app/engine/budget.py::photon_budget": (117, "the seeded ray tally in one loop"),
-    "app/room/roomfile.py": (418, "parsing and cross-field consistency in one module"),
-    "app/room/roomfile.py::consistency_problems": (91, "every cross-field rule in one function"),
     "app/service/analysis.py": (402, "the analysis and its per-zone results in one module"),
     "app/service/analysis.py::analyse": (82, "the whole analysis chain in one function"),
     "app/service/analysis.py::_zone_result": (133, "every per-zone figure in one function"),

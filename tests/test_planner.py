@@ -7,8 +7,9 @@ import pytest
 
 from app.engine.compute import compute_scene
 from app.engine.scene import Grid
+from app.room.consistency import consistency_problems
 from app.room.models import Crop, CropStage, RoomFile
-from app.room.roomfile import consistency_problems, parse_room_file, to_json_bytes
+from app.room.roomfile import parse_room_file, to_json_bytes
 from app.service.analysis import analyse
 from app.service.planner import (
     DARK_ALLOWANCE,

@@ -11,7 +11,8 @@ import pytest
 from app.bench_safety import big_room, grid_of_fixtures
 from app.engine import cache as engine_cache
 from app.engine import direct
-from app.room.roomfile import grid_point_count, parse_room_file
+from app.room.consistency import grid_point_count
+from app.room.roomfile import parse_room_file
 from app.service.analysis import analyse
 from app.service.cost import OverBudget, check_budget, estimate
 from app.service.guarded import AnalysisRunner, AnalysisTimeout

@@ -20,9 +20,9 @@ import numpy as np
 from app.engine import metrics as mx
 from app.engine.compute import compute_scene
 from app.room import layout
+from app.room.consistency import consistency_problems
 from app.room.library import crops_for
 from app.room.models import CanopyZone, Fixture, FixtureType, Room, RoomFile
-from app.room.roomfile import consistency_problems
 from app.service.maintained import factor_for
 from app.service.scene_builder import build_scene, emitter_for
 from app.service.verdict import dark_allowance, zone_result_verdict, zone_verdict
