@@ -6,7 +6,6 @@ This is the service layer: it converts models to engine inputs
 
 from __future__ import annotations
 
-import math
 import time
 from dataclasses import dataclass
 from typing import Any
@@ -19,22 +18,19 @@ from app.engine.budget import photon_budget
 from app.engine.compute import compute_scene
 from app.room import layout
 from app.room.library import crops_for
-from app.room.models import CanopyZone, Crop, Fixture, Room, RoomFile
+from app.room.models import CanopyZone, Fixture, Room, RoomFile
 from app.service.maintained import output_basis
 from app.service.notices import (  # noqa: F401 (CAUTIONS and the night rules are re-exported)
     CAUTIONS,
     DEFAULT_MIN_DARK_H,
     LONG_DAY_NIGHT_H,
     SHORT_DAY_NIGHT_H,
-    nearest_fixture,
-    photoperiod_warnings,
     room_warnings,
     warn,
 )
 from app.service.scene_builder import build_scene
-from app.service.verdict import allowance_info, dark_allowance, zone_verdict
-
-UNIFORMITY_NOTE_BELOW = 0.7  # Leafcast's own prompt, no source: no horticultural pass mark is published
+from app.service.verdict import allowance_info, dark_allowance
+from app.service.zone_result import zone_photoperiod_h, zone_result
 
 
 @dataclass(frozen=True)
@@ -46,10 +42,6 @@ class Region:
     y_m: float
     width_m: float
     length_m: float
-
-
-def zone_photoperiod_h(room: Room, zone: CanopyZone) -> float:
-    return zone.photoperiod_h if zone.photoperiod_h is not None else room.schedule.photoperiod_h
 
 
 def zone_below(room: Room, fixture: Fixture) -> CanopyZone | None:
@@ -64,10 +56,6 @@ def _fixture_hours(room: Room) -> dict[str, float]:
         zone = zone_below(room, f)
         out[f.id] = zone_photoperiod_h(room, zone) if zone else room.schedule.photoperiod_h
     return out
-
-
-def _round_grid(a: np.ndarray, digits: int = 1) -> list[list[float]]:
-    return np.round(a.astype(float), digits).tolist()
 
 
 def _region_stats(zl, region: Region) -> dict[str, Any] | None:
@@ -113,31 +101,16 @@ def analyse(
     emitted = sum(e.flux_umol_s for e in scene.emitters)
     allowance = dark_allowance(room)
 
-    warnings: list[dict[str, Any]] = []
-    zones_out = []
-    canopy_flux = canopy_photons_mol_day = 0.0
-    for zone, zl in zip(room.zones, lights, strict=True):
-        zone_out, zone_warnings, flux, photons = _zone_result(
-            room, zone, zl, crops[zone.crop_id], allowance, include_grids
-        )
-        zones_out.append(zone_out)
-        warnings += zone_warnings
-        canopy_flux += flux
-        canopy_photons_mol_day += photons
+    zones_out, warnings, canopy_flux, canopy_photons_mol_day = _zone_results(
+        room, lights, crops, allowance, include_grids
+    )
     fixtures_out, circuits_out, energy, heat, circuit_warnings = _energy_and_circuits(
         room, types, _fixture_hours(room), type_factor, emitted, canopy_flux, canopy_photons_mol_day
     )
     warnings += circuit_warnings + room_warnings(room, basis)
 
     result: dict[str, Any] = {
-        "room": {
-            "name": room.name,
-            "revision": room_file.revision,
-            "display_units": room.display_units,
-            "width_m": room.width_m,
-            "length_m": room.length_m,
-            "height_m": room.height_m,
-        },
+        "room": _room_summary(room_file),
         "zones": zones_out,
         "fixtures": fixtures_out,
         "fixture_zones": layout.fixture_zones(room.zones, room.fixtures),
@@ -171,139 +144,35 @@ def analyse(
     return result
 
 
-def _zone_result(
-    room: Room, zone: CanopyZone, zl, crop: Crop, allowance: float, include_grids: bool
-) -> tuple[dict[str, Any], list[dict[str, Any]], float, float]:
-    """One zone's figures and warnings, and its canopy flux [µmol s⁻¹] and photons [mol d⁻¹]."""
-    stage = crop.stages[zone.stage]
-    photoperiod = zone_photoperiod_h(room, zone)
-    ppfd = zl.ppfd
-    area = zl.grid.cell_area_m2
-    dli = mx.dli_mol_m2_d(ppfd, photoperiod)
-    stats = mx.area_weighted_stats(ppfd, area)
-    dli_stats = mx.area_weighted_stats(dli, area)
-    in_band = (dli >= stage.dli_min) & (dli <= stage.dli_max)
-    dark = dli < stage.dli_min
-    hot = ppfd > stage.ppfd_stress_umol_m2_s
-    band_area, band_share = mx.share_of_area(in_band, area)
-    dark_area, dark_share = mx.share_of_area(dark, area)
-    hot_area, hot_share = mx.share_of_area(hot, area)
-    flux = float((ppfd * area).sum())
-    direct_flux = float((zl.direct * area).sum())
-    target_mid = 0.5 * (stage.dli_min + stage.dli_max)
-    hours_for_min = float(mx.photoperiod_for_dli_h(stage.dli_min, stats["avg"])) if stats["avg"] > 0 else None
-    dim_scale_mid = target_mid / dli_stats["avg"] if dli_stats["avg"] > 0 else None
-    xs, ys = zl.grid.x_m, zl.grid.y_m
-
-    warnings: list[dict[str, Any]] = []
-    if dark_share > 0:
-        within = dark_share <= allowance + 1e-9
-        warnings.append(
-            warn(
-                "dark_zone",
-                "info" if within else ("warning" if dark_share < 0.5 else "error"),
-                f"{dark_share:.0%} of {zone.name} ({dark_area:.2f} m²) gets less than the "
-                f"{stage.dli_min:g} mol m⁻² d⁻¹ that {crop.name.lower()} needs "
-                f"(lowest {dli_stats['min']:.1f}); "
-                + (
-                    f"within the {allowance:.0%} allowance for dark area."
-                    if within
-                    else f"more than the {allowance:.0%} allowance for dark area."
-                ),
-                "Nothing to do: within the allowance."
-                if within
-                else "Lengthen the photoperiod, raise the dimming, lower the fixtures or add one over the dark area.",
-                zone.id,
-                where=mx.mask_bounds(dark, xs, ys),
-            )
-        )
-    if hot_share > 0:
-        b = mx.mask_bounds(hot, xs, ys)
-        fid = nearest_fixture(room, 0.5 * (b[0] + b[2]), 0.5 * (b[1] + b[3]))
-        fix = (
-            f"Raise or dim the fixtures over it (peak {stats['max']:.0f} against the "
-            f"{stage.ppfd_stress_umol_m2_s:g} limit)."
-        )
-        warnings.append(
-            warn(
-                "hot_spot",
-                "warning",
-                f"{hot_share:.0%} of {zone.name} ({hot_area:.2f} m²) is above "
-                f"{stage.ppfd_stress_umol_m2_s:g} µmol m⁻² s⁻¹, where {crop.name.lower()} leaves are stressed.",
-                fix,
-                zone.id,
-                fid,
-                b,
-            )
-        )
-    if dli_stats["avg"] > stage.dli_max and stats["avg"] > 0:
-        hours_fit = float(mx.photoperiod_for_dli_h(stage.dli_max, stats["avg"]))
-        warnings.append(
-            warn(
-                "over_target",
-                "info",
-                f"{zone.name} averages {dli_stats['avg']:.1f} mol m⁻² d⁻¹, above the "
-                f"{stage.dli_min:g}-{stage.dli_max:g} band: power is being spent for no gain.",
-                f"Shorten the photoperiod (about {math.floor(hours_fit * 4) / 4:g} h would bring the average "
-                "to the top of the band) or dim the fixtures over it.",
-                zone.id,
-            )
-        )
-    if stats["avg"] > 0 and stats["min_over_avg"] < UNIFORMITY_NOTE_BELOW:
-        warnings.append(
-            warn(
-                "uneven",
-                "info",
-                f"{zone.name}: uniformity min/avg is {stats['min_over_avg']:.2f} "
-                f"(Leafcast flags below {UNIFORMITY_NOTE_BELOW:g}, a default with no published source).",
-                "Spread the fixtures more evenly, raise them, or add one where it is darkest.",
-                zone.id,
-                where=mx.mask_bounds(ppfd <= stats["min"] * 1.05, xs, ys),
-            )
-        )
-    if stats["avg"] == 0:
-        warnings.append(warn("unlit", "error", f"{zone.name} gets no light.", "Hang a fixture over it.", zone.id))
-    warnings += photoperiod_warnings(zone, crop, photoperiod)
-
-    zone_out: dict[str, Any] = {
-        "id": zone.id,
-        "name": zone.name,
-        "crop_id": crop.id,
-        "crop_name": crop.name,
-        "stage": zone.stage,
-        "canopy_height_m": zone.canopy_height_m,
-        "photoperiod_h": photoperiod,
-        "rect": [zone.x_m, zone.y_m, zone.width_m, zone.length_m],
-        "target": {
-            "dli_min": stage.dli_min,
-            "dli_max": stage.dli_max,
-            "ppfd_min": float(mx.ppfd_for_dli(stage.dli_min, photoperiod)),
-            "ppfd_max": float(mx.ppfd_for_dli(stage.dli_max, photoperiod)),
-            "ppfd_stress": stage.ppfd_stress_umol_m2_s,
-            "source": stage.source,
-        },
-        "ppfd": stats,
-        "dli": dli_stats,
-        "share_in_band": band_share,
-        "dark": {"area_m2": dark_area, "share": dark_share, "outline": mx.mask_outline(dark, xs, ys)},
-        "hot": {"area_m2": hot_area, "share": hot_share, "outline": mx.mask_outline(hot, xs, ys)},
-        "verdict": zone_verdict(dark_share, hot_share, dli_stats["avg"], stage.dli_max, allowance),
-        "photoperiod_for_target_h": hours_for_min,
-        "dimming_scale_for_target_mid": dim_scale_mid,
-        "canopy_flux_umol_s": flux,
-        "direct_share": direct_flux / flux if flux > 0 else 0.0,
-        "reflected_share": 1 - direct_flux / flux if flux > 0 else 0.0,
-        "area_m2": float(area.sum()),
+def _room_summary(room_file: RoomFile) -> dict[str, Any]:
+    room = room_file.room
+    return {
+        "name": room.name,
+        "revision": room_file.revision,
+        "display_units": room.display_units,
+        "width_m": room.width_m,
+        "length_m": room.length_m,
+        "height_m": room.height_m,
     }
-    if include_grids:
-        zone_out["grid"] = {
-            "x_m": np.round(xs, 5).tolist(),
-            "y_m": np.round(ys, 5).tolist(),
-            "spacing_m": zl.grid.spacing_m,
-            "ppfd": _round_grid(ppfd),
-            "dli": _round_grid(dli, 2),
-        }
-    return zone_out, warnings, flux, flux * photoperiod * mx.DLI_FACTOR
+
+
+def _zone_results(
+    room: Room, lights: list, crops: dict, allowance: float, include_grids: bool
+) -> tuple[list[dict[str, Any]], list[dict[str, Any]], float, float]:
+    """Every zone's result (:mod:`app.service.zone_result`), their warnings in zone order, and the canopy's
+    total flux [µmol s⁻¹] and photons [mol d⁻¹]."""
+    zones_out: list[dict[str, Any]] = []
+    warnings: list[dict[str, Any]] = []
+    canopy_flux = canopy_photons_mol_day = 0.0
+    for zone, zl in zip(room.zones, lights, strict=True):
+        zone_out, zone_warnings, flux, photons = zone_result(
+            room, zone, zl, crops[zone.crop_id], allowance, include_grids
+        )
+        zones_out.append(zone_out)
+        warnings += zone_warnings
+        canopy_flux += flux
+        canopy_photons_mol_day += photons
+    return zones_out, warnings, canopy_flux, canopy_photons_mol_day
 
 
 def _energy_and_circuits(

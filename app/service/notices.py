@@ -1,6 +1,6 @@
 """The notices an analysis carries: warnings with their place and fix, photoperiod rules, and the cautions.
 
-Zone figures are computed in :mod:`app.service.analysis`; the rules that turn them and the room into words live
+Zone figures are computed in :mod:`app.service.zone_result`; the rules that turn them and the room into words live
 here, each with its source or its mark as Leafcast's own default.
 """
 
