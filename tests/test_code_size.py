@@ -26,9 +26,6 @@ ALLOWED: dict[str, tuple[int, str]] = {
     "app/bench.py": (435, "benchmark scenes and runner in one module; to split into scenes and runner"),
     "app/bench.py::main": (88, "argument parsing and every benchmark step in one function"),
     "app/engine/budget.py::photon_budget": (117, "the seeded ray tally in one loop"),
-    "app/service/photometry.py": (434, "both photometry formats in one module"),
-    "app/service/photometry.py::parse_ies": (123, "the LM-63 reader in one function"),
-    "app/service/photometry.py::parse_ldt": (81, "the EULUMDAT reader in one function"),
 }
 
 
