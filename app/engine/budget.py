@@ -94,6 +94,30 @@ def photon_budget(
     if not emitters:
         return budget
     n_ray = rays_per_emitter or int(np.clip(TOTAL_RAYS // len(emitters), MIN_RAYS_PER_EMITTER, MAX_RAYS_PER_EMITTER))
+    o, d, w = _launch(emitters, grids, n_ray, rng, budget)
+    targets = _Targets.of(grids, boxes)
+    finishes = _Finishes.of(enc)
+    zone_tally = np.zeros(len(grids))
+    for _ in range(MAX_BOUNCES):
+        if o.shape[0] == 0:
+            break
+        which, t = _first_hits(o, d, enc, targets)
+        p = o + np.where(np.isfinite(t), t, 0.0)[:, None] * d
+        _tally_sinks(budget, zone_tally, which, d, w, len(grids))
+        w, normals, refl, mirrored = _tally_surfaces(budget, enc, finishes, which, d, w)
+        o, d, w = _bounce(budget, rng, p, d, w, normals, refl, mirrored)
+    budget.unresolved_umol_s += float(w.sum())
+    budget.zones_umol_s = {g.id: float(v) for g, v in zip(grids, zone_tally, strict=True)}
+    for name in ("floor_umol_s", "obstacles_umol_s", "walls_absorbed_umol_s", "escaped_umol_s"):
+        setattr(budget, name, float(getattr(budget, name)))
+    return budget
+
+
+def _launch(
+    emitters: tuple[Emitter, ...], grids: tuple[Grid, ...], n_ray: int, rng: np.random.Generator, budget: Budget
+) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """Ray origins [m], unit directions and weights [µmol/s]: `n_ray` rays per emitter shared over its
+    quadrature nodes by their flux; each emitter's flux is added to the budget's emitted total."""
     origins, dirs, weights = [], [], []
     for e in emitters:
         budget.emitted_umol_s += e.flux_umol_s
@@ -104,96 +128,146 @@ def photon_budget(
         origins.append(nodes[idx])
         dirs.append(_directions(e, n_ray, rng))
         weights.append(flux[idx] / counts[idx])
-    o, d, w = np.vstack(origins), np.vstack(dirs), np.concatenate(weights)
+    return np.vstack(origins), np.vstack(dirs), np.concatenate(weights)
+
+
+@dataclass(frozen=True)
+class _Targets:
+    """What a ray can land on besides the room's surfaces: canopy zones (height, corners) and boxes (corners) [m]."""
+
+    zone_z: np.ndarray
+    zone_lo: np.ndarray
+    zone_hi: np.ndarray
+    box_lo: np.ndarray
+    box_hi: np.ndarray
+
+    @classmethod
+    def of(cls, grids: tuple[Grid, ...], boxes: tuple[Box, ...]) -> _Targets:
+        return cls(
+            zone_z=np.array([g.z_m for g in grids]),
+            zone_lo=np.array([[g.x0_m, g.y0_m] for g in grids]).reshape(-1, 2),
+            zone_hi=np.array([[g.x0_m + g.width_m, g.y0_m + g.length_m] for g in grids]).reshape(-1, 2),
+            box_lo=np.array([[b.x0_m, b.y0_m, b.z0_m] for b in boxes]).reshape(-1, 3),
+            box_hi=np.array([[b.x1_m, b.y1_m, b.z1_m] for b in boxes]).reshape(-1, 3),
+        )
+
+
+@dataclass(frozen=True)
+class _Finishes:
+    """The walls' reflectances and the ceiling's kind and reflectance."""
+
+    wall_rho: dict[str, float]
+    ceiling_kind: str
+    ceiling_rho: float
+
+    @classmethod
+    def of(cls, enc: Enclosure) -> _Finishes:
+        ceiling_kind, ceiling_rho = enc.surface("ceiling")
+        return cls({s: enc.wall_reflectance(s) for s in ("left", "right", "front", "back")}, ceiling_kind, ceiling_rho)
+
+
+def _first_hits(o: np.ndarray, d: np.ndarray, enc: Enclosure, targets: _Targets) -> tuple[np.ndarray, np.ndarray]:
+    """For each ray, what it meets first and the distance [m] to it. Candidates: 0 x-wall, 1 y-wall,
+    2 floor/ceiling, 3.. zones, then boxes (slab test)."""
+    n = o.shape[0]
     W, L, H = enc.width_m, enc.length_m, enc.height_m
-    rho = {s: enc.wall_reflectance(s) for s in ("left", "right", "front", "back")}
-    ceiling_kind, ceiling_rho = enc.surface("ceiling")
-    zone_z = np.array([g.z_m for g in grids])
-    zone_lo = np.array([[g.x0_m, g.y0_m] for g in grids]).reshape(-1, 2)
-    zone_hi = np.array([[g.x0_m + g.width_m, g.y0_m + g.length_m] for g in grids]).reshape(-1, 2)
-    blo = np.array([[b.x0_m, b.y0_m, b.z0_m] for b in boxes]).reshape(-1, 3)
-    bhi = np.array([[b.x1_m, b.y1_m, b.z1_m] for b in boxes]).reshape(-1, 3)
-    zone_tally = np.zeros(len(grids))
-
-    for _ in range(MAX_BOUNCES):
-        if o.shape[0] == 0:
-            break
-        n = o.shape[0]
+    with np.errstate(divide="ignore", invalid="ignore"):
+        inv = 1.0 / d
+        tx = np.where(d[:, 0] > 0, (W - o[:, 0]) * inv[:, 0], np.where(d[:, 0] < 0, -o[:, 0] * inv[:, 0], np.inf))
+        ty = np.where(d[:, 1] > 0, (L - o[:, 1]) * inv[:, 1], np.where(d[:, 1] < 0, -o[:, 1] * inv[:, 1], np.inf))
+        tz = np.where(d[:, 2] > 0, (H - o[:, 2]) * inv[:, 2], np.where(d[:, 2] < 0, -o[:, 2] * inv[:, 2], np.inf))
+    cand = [tx, ty, tz]
+    for k in range(targets.zone_z.shape[0]):
         with np.errstate(divide="ignore", invalid="ignore"):
-            inv = 1.0 / d
-            tx = np.where(d[:, 0] > 0, (W - o[:, 0]) * inv[:, 0], np.where(d[:, 0] < 0, -o[:, 0] * inv[:, 0], np.inf))
-            ty = np.where(d[:, 1] > 0, (L - o[:, 1]) * inv[:, 1], np.where(d[:, 1] < 0, -o[:, 1] * inv[:, 1], np.inf))
-            tz = np.where(d[:, 2] > 0, (H - o[:, 2]) * inv[:, 2], np.where(d[:, 2] < 0, -o[:, 2] * inv[:, 2], np.inf))
-        # Candidates: 0 x-wall, 1 y-wall, 2 floor/ceiling, 3.. zones, then boxes.
-        cand = [tx, ty, tz]
-        for k in range(len(grids)):
-            with np.errstate(divide="ignore", invalid="ignore"):
-                t = np.where(d[:, 2] < 0, (zone_z[k] - o[:, 2]) * inv[:, 2], np.inf)
-            t = np.where(t > 1e-9, t, np.inf)
-            hit = o[:, :2] + t[:, None] * d[:, :2]
-            inside = np.all((hit >= zone_lo[k]) & (hit <= zone_hi[k]), axis=1)
-            cand.append(np.where(inside, t, np.inf))
-        for k in range(len(boxes)):
-            with np.errstate(divide="ignore", invalid="ignore"):
-                t1 = (blo[k] - o) * inv
-                t2 = (bhi[k] - o) * inv
-            t1 = np.nan_to_num(t1, nan=-np.inf)
-            t2 = np.nan_to_num(t2, nan=np.inf)
-            tmin = np.max(np.minimum(t1, t2), axis=1)
-            tmax = np.min(np.maximum(t1, t2), axis=1)
-            cand.append(np.where((tmax > tmin) & (tmin > 1e-9), tmin, np.inf))
-        T = np.vstack(cand)
-        which = np.argmin(T, axis=0)
-        t = T[which, np.arange(n)]
-        p = o + np.where(np.isfinite(t), t, 0.0)[:, None] * d
-        alive = np.zeros(n, dtype=bool)
-        new_d = d.copy()
+            t = np.where(d[:, 2] < 0, (targets.zone_z[k] - o[:, 2]) * inv[:, 2], np.inf)
+        t = np.where(t > 1e-9, t, np.inf)
+        hit = o[:, :2] + t[:, None] * d[:, :2]
+        inside = np.all((hit >= targets.zone_lo[k]) & (hit <= targets.zone_hi[k]), axis=1)
+        cand.append(np.where(inside, t, np.inf))
+    for k in range(targets.box_lo.shape[0]):
+        with np.errstate(divide="ignore", invalid="ignore"):
+            t1 = (targets.box_lo[k] - o) * inv
+            t2 = (targets.box_hi[k] - o) * inv
+        t1 = np.nan_to_num(t1, nan=-np.inf)
+        t2 = np.nan_to_num(t2, nan=np.inf)
+        tmin = np.max(np.minimum(t1, t2), axis=1)
+        tmax = np.min(np.maximum(t1, t2), axis=1)
+        cand.append(np.where((tmax > tmin) & (tmin > 1e-9), tmin, np.inf))
+    T = np.vstack(cand)
+    which = np.argmin(T, axis=0)
+    return which, T[which, np.arange(n)]
 
-        for k in range(len(grids)):
-            m = which == 3 + k
-            zone_tally[k] += w[m].sum()
-        budget.obstacles_umol_s += w[which >= 3 + len(grids)].sum()
-        floor = (which == 2) & (d[:, 2] < 0)
-        budget.floor_umol_s += w[floor].sum()
-        ceiling = (which == 2) & (d[:, 2] > 0)
-        normals = np.zeros_like(d)
-        mirrored = np.zeros(n, dtype=bool)
-        if ceiling_kind == "open":
-            budget.escaped_umol_s += w[ceiling].sum()
-            refl = np.zeros(n, dtype=bool)
-        else:
-            budget.walls_absorbed_umol_s += (w[ceiling] * (1 - ceiling_rho)).sum()
-            normals[ceiling] = [0, 0, -1]
-            refl = ceiling & (ceiling_rho > 0)
-            mirrored |= refl if ceiling_kind == "specular" else False
-            w = np.where(ceiling, w * ceiling_rho, w)
-        for axis, (lo_side, hi_side) in ((0, ("left", "right")), (1, ("front", "back"))):
-            m = which == axis
-            hi = m & (d[:, axis] > 0)
-            lo = m & (d[:, axis] < 0)
-            for sel, side, sign in ((hi, hi_side, -1.0), (lo, lo_side, 1.0)):
-                if enc.is_open(side):
-                    budget.escaped_umol_s += w[sel].sum()
-                    continue
-                r = rho[side]
-                budget.walls_absorbed_umol_s += (w[sel] * (1 - r)).sum()
-                w = np.where(sel, w * r, w)
-                normals[sel, axis] = sign
-                if r > 0:
-                    refl |= sel
-                    if enc.surface(side)[0] == "specular":
-                        mirrored |= sel
-        spec = refl & mirrored
-        matt = refl & ~mirrored
-        new_d[spec] = d[spec] - 2 * np.sum(d[spec] * normals[spec], axis=1, keepdims=True) * normals[spec]
-        if matt.any():
-            new_d[matt] = _cosine_hemisphere(normals[matt], rng)
-        alive = refl & (w > MIN_WEIGHT * max(budget.emitted_umol_s, 1e-30) / max(n, 1))
-        budget.walls_absorbed_umol_s += w[refl & ~alive].sum()  # negligible leftovers end in the walls
-        o = p[alive] + 1e-9 * normals[alive]
-        d, w = new_d[alive], w[alive]
-    budget.unresolved_umol_s += float(w.sum())
-    budget.zones_umol_s = {g.id: float(v) for g, v in zip(grids, zone_tally, strict=True)}
-    for name in ("floor_umol_s", "obstacles_umol_s", "walls_absorbed_umol_s", "escaped_umol_s"):
-        setattr(budget, name, float(getattr(budget, name)))
-    return budget
+
+def _tally_sinks(
+    budget: Budget, zone_tally: np.ndarray, which: np.ndarray, d: np.ndarray, w: np.ndarray, n_zones: int
+) -> None:
+    """Rays that end here: on a canopy zone, an obstacle or the floor."""
+    for k in range(n_zones):
+        m = which == 3 + k
+        zone_tally[k] += w[m].sum()
+    budget.obstacles_umol_s += w[which >= 3 + n_zones].sum()
+    floor = (which == 2) & (d[:, 2] < 0)
+    budget.floor_umol_s += w[floor].sum()
+
+
+def _tally_surfaces(
+    budget: Budget, enc: Enclosure, finishes: _Finishes, which: np.ndarray, d: np.ndarray, w: np.ndarray
+) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
+    """Rays meeting the ceiling or a wall: escaped through an open one, or partly absorbed and reflected.
+    Returns the weights after reflection, the surfaces' inward normals, and which rays reflect and which of
+    them mirror-like."""
+    n = d.shape[0]
+    ceiling = (which == 2) & (d[:, 2] > 0)
+    normals = np.zeros_like(d)
+    mirrored = np.zeros(n, dtype=bool)
+    if finishes.ceiling_kind == "open":
+        budget.escaped_umol_s += w[ceiling].sum()
+        refl = np.zeros(n, dtype=bool)
+    else:
+        ceiling_rho = finishes.ceiling_rho
+        budget.walls_absorbed_umol_s += (w[ceiling] * (1 - ceiling_rho)).sum()
+        normals[ceiling] = [0, 0, -1]
+        refl = ceiling & (ceiling_rho > 0)
+        mirrored |= refl if finishes.ceiling_kind == "specular" else False
+        w = np.where(ceiling, w * ceiling_rho, w)
+    for axis, (lo_side, hi_side) in ((0, ("left", "right")), (1, ("front", "back"))):
+        m = which == axis
+        hi = m & (d[:, axis] > 0)
+        lo = m & (d[:, axis] < 0)
+        for sel, side, sign in ((hi, hi_side, -1.0), (lo, lo_side, 1.0)):
+            if enc.is_open(side):
+                budget.escaped_umol_s += w[sel].sum()
+                continue
+            r = finishes.wall_rho[side]
+            budget.walls_absorbed_umol_s += (w[sel] * (1 - r)).sum()
+            w = np.where(sel, w * r, w)
+            normals[sel, axis] = sign
+            if r > 0:
+                refl |= sel
+                if enc.surface(side)[0] == "specular":
+                    mirrored |= sel
+    return w, normals, refl, mirrored
+
+
+def _bounce(
+    budget: Budget,
+    rng: np.random.Generator,
+    p: np.ndarray,
+    d: np.ndarray,
+    w: np.ndarray,
+    normals: np.ndarray,
+    refl: np.ndarray,
+    mirrored: np.ndarray,
+) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """The reflected rays leaving their hit points `p`: mirrored about the normal (specular) or re-emitted
+    cosine-weighted (matt); rays whose weight is negligible end in the walls."""
+    n = d.shape[0]
+    new_d = d.copy()
+    spec = refl & mirrored
+    matt = refl & ~mirrored
+    new_d[spec] = d[spec] - 2 * np.sum(d[spec] * normals[spec], axis=1, keepdims=True) * normals[spec]
+    if matt.any():
+        new_d[matt] = _cosine_hemisphere(normals[matt], rng)
+    alive = refl & (w > MIN_WEIGHT * max(budget.emitted_umol_s, 1e-30) / max(n, 1))
+    budget.walls_absorbed_umol_s += w[refl & ~alive].sum()  # negligible leftovers end in the walls
+    return p[alive] + 1e-9 * normals[alive], new_d[alive], w[alive]
