@@ -21,18 +21,17 @@ from pathlib import Path
 import numpy as np
 
 from app.assets import asset_dir
+from app.bench_scenes import sample, tent_with_filter_and_fan, white_room
 from app.engine import cache as engine_cache
 from app.engine import compute, direct
 from app.engine.compute import compute_scene
 from app.engine.direct import irradiance_from_nodes
-from app.engine.distributions import lambertian
 from app.engine.emitters import local_nodes
 from app.engine.mirror_images import image_list, mirror_coordinate
-from app.engine.scene import Box, Emitter, Enclosure, Grid
+from app.engine.scene import Box
 from app.room.roomfile import parse_room_file
 from app.service.farm import vertical_farm
 from app.service.scene_builder import EngineScene, build_scene
-from app.settings import CHROMIUM_FLAGS
 
 
 def clear_fixture_caches() -> None:
@@ -159,96 +158,6 @@ def bench_scene(name: str, scene: EngineScene, repeats: int, brute: bool, rng: n
     return result
 
 
-def browser_latency(rooms: list[str], moves: int = 40, drops: int = 7) -> list[dict]:
-    """In Debian's Chromium against a real server: drag preview frames and mouse-up to exact figures.
-
-    While a fixture is dragged the editor composes the map from per-fixture footprints (no round trip); each
-    move waits for its painted frame (``since_move_ms``: pointer move to painted canvas, what sets the frame
-    rate). Each drop waits for the exact answer's figures (``drop_ms``: mouse-up to figures painted) and
-    then its map (``drop_map_ms``). Needs the test extra (playwright) and the chromium package.
-    """
-    import shutil
-    import socket
-    import tempfile
-    import threading
-
-    import uvicorn
-    from playwright.sync_api import sync_playwright
-
-    from app.settings import Settings
-    from app.web import create_app
-
-    with socket.socket() as sock:
-        sock.bind(("127.0.0.1", 0))
-        port = sock.getsockname()[1]
-    data = tempfile.mkdtemp(prefix="leafcast-bench-")
-    server = uvicorn.Server(
-        uvicorn.Config(create_app(Settings(data_dir=Path(data))), host="127.0.0.1", port=port, log_level="warning")
-    )
-    thread = threading.Thread(target=server.run, daemon=True)
-    thread.start()
-    while not server.started:
-        time.sleep(0.05)
-    out = []
-    try:
-        with sync_playwright() as p:
-            browser = p.chromium.launch(executable_path=shutil.which("chromium"), args=list(CHROMIUM_FLAGS))
-            page = browser.new_page(viewport={"width": 1280, "height": 800})
-            for room in rooms:
-                out.append(_drag_and_drop(page, f"http://127.0.0.1:{port}/rooms/{room}", room, moves, drops))
-            browser.close()
-    finally:
-        server.should_exit = True
-        thread.join(5)
-        shutil.rmtree(data, ignore_errors=True)
-    return out
-
-
-def _drag_and_drop(page, url: str, room: str, moves: int, drops: int) -> dict:
-    idle = "() => window.leafcast && window.leafcast.ready && !window.leafcast.analysing"
-    page.goto(url)
-    page.wait_for_function(idle)
-    fid = page.evaluate("() => window.leafcast.doc.room.fixtures[0].id")
-    with page.expect_response(lambda r: "/api/footprints" in r.url):
-        page.locator(f'[data-fixture-id="{fid}"]').click()
-    frames, paint, drop, drop_map = [], [], [], []
-    for d in range(drops):
-        page.wait_for_function(idle)
-        box = page.locator(f'[data-fixture-id="{fid}"]').bounding_box()
-        x, y = box["x"] + box["width"] / 2, box["y"] + box["height"] / 2
-        page.mouse.move(x, y)
-        page.mouse.down()
-        sign = 1 if d % 2 == 0 else -1
-        for k in range(moves // drops + 2):
-            n = page.evaluate("() => window.leafcast.previewFrames.length")
-            page.mouse.move(x + sign * (4 + 2 * k), y)  # past the 2 px a press may wobble before it drags
-            page.wait_for_function("n => window.leafcast.previewFrames.length > n", arg=n)
-            f = page.evaluate("() => window.leafcast.previewFrames.at(-1)")
-            frames.append(f["since_move_ms"])
-            paint.append(f["paint_ms"])
-        n = page.evaluate("() => window.leafcast.timing.length")
-        page.mouse.up()
-        page.wait_for_function("n => window.leafcast.timing.length > n", arg=n)
-        t = page.evaluate("() => window.leafcast.timing.at(-1)")
-        drop.append(t["since_move_ms"])
-        drop_map.append(t["map_ms"])
-    med = statistics.median
-    return {
-        "room": room,
-        "frame_ms": med(frames),
-        "frames_per_s_bound": 1000 / med(frames),
-        "paint_ms": med(paint),
-        "drop_ms": med(drop),
-        "drop_map_ms": med(drop_map),
-        "max_frame_ms": max(frames),
-        "max_drop_ms": max(drop),
-    }
-
-
-def sample(name: str) -> EngineScene:
-    return build_scene(parse_room_file((asset_dir("sample_rooms") / f"{name}.json").read_bytes()).room)
-
-
 def bench_year() -> dict:
     """The cycle-and-year page of the greenhouse sample: first call (pvlib import and the year of sun), then cold
     analysis caches (the sun model stays cached for the process, as it does in the server)."""
@@ -272,37 +181,6 @@ def bench_year() -> dict:
     return {"scene": "year page greenhouse-lettuce-bench", "first_s": first, "cold_s": cold}
 
 
-def tent_with_filter_and_fan() -> EngineScene:
-    """The sample tent with a carbon filter hung from the top bars and a 15 cm clip fan on a corner pole."""
-    s = sample("hobby-tent-peppers")
-    carbon_filter = Box(0.45, 0.45, 1.45, 0.75, 0.75, 1.95)
-    fan = Box(0.03, 0.03, 0.75, 0.18, 0.18, 0.90)
-    return replace(s, boxes=(*s.boxes, carbon_filter, fan))
-
-
-def white_room() -> EngineScene:
-    """Three white-painted walls and ceiling, an open front (a wide doorway), four 0.6 m panels."""
-    W, L, H = 3.0, 3.6, 2.4
-    paint = ("diffuse", 0.8)
-    enc = Enclosure(
-        W,
-        L,
-        H,
-        surfaces=(
-            ("left", *paint),
-            ("right", *paint),
-            ("back", *paint),
-            ("front", "open", 0.0),
-            ("ceiling", *paint),
-        ),
-    )
-    fixtures = tuple(
-        Emitter(f"p{k}", x, y, 1.6, 560.0, lambertian(), "panel", 0.6, 0.6)
-        for k, (x, y) in enumerate([(0.9, 1.2), (2.1, 1.2), (0.9, 2.4), (2.1, 2.4)])
-    )
-    return EngineScene(fixtures, (Grid("floor", 0.0, 0.0, W, L, 0.9, 0.025),), enc, ())
-
-
 def one_obstacle_ratio(name: str, repeats: int) -> dict:
     """Full-compute time of a sample with one 15 cm box added, over the same without (target <= 3x)."""
     s = sample(name)
@@ -321,7 +199,7 @@ def one_obstacle_ratio(name: str, repeats: int) -> dict:
     return {"scene": f"{name} + one 15 cm box", "full_ms": boxed, "without_ms": base, "ratio": boxed / base}
 
 
-def main(argv: list[str] | None = None) -> int:
+def _arguments(argv: list[str] | None) -> argparse.Namespace:
     ap = argparse.ArgumentParser(prog="python -m app.bench", description=__doc__.splitlines()[0])
     ap.add_argument("--repeats", type=int, default=9)
     ap.add_argument("--no-farm", action="store_true", help="skip the 1,000-fixture vertical farm")
@@ -335,43 +213,35 @@ def main(argv: list[str] | None = None) -> int:
         help="also: the cost model against measured times, and small requests beside the heaviest accepted one",
     )
     ap.add_argument("--no-year", action="store_true", help="skip the cycle-and-year page timing")
-    args = ap.parse_args(argv)
-    rng = np.random.default_rng(1)
-    results = [
-        bench_scene(
-            "tent 4x4 ft, 2 bar arrays, reflective film, 1 in grid",
-            sample("hobby-tent-peppers"),
-            args.repeats,
-            True,
-            rng,
-        ),
-        bench_scene(
-            "room 10x12 ft, 6 panels, 2 benches, matt walls, 1 in grid",
-            sample("basement-two-benches"),
-            args.repeats,
-            True,
-            rng,
-        ),
-        bench_scene(
-            "rack 2x4 ft, 3 tiers, 6 strips, 1 in grid", sample("three-tier-greens-rack"), args.repeats, True, rng
-        ),
-        bench_scene(
-            "tent 4x4 ft + carbon filter + clip fan, reflective film",
-            tent_with_filter_and_fan(),
-            args.repeats,
-            True,
-            rng,
-        ),
-        bench_scene("white-painted room 3 x 3.6 m, open doorway, 2.5 cm grid", white_room(), args.repeats, True, rng),
-    ]
+    return ap.parse_args(argv)
+
+
+# The engine scenes timed against the brute-force reference: (name, scene builder), in the order they print.
+ENGINE_SCENES = (
+    ("tent 4x4 ft, 2 bar arrays, reflective film, 1 in grid", lambda: sample("hobby-tent-peppers")),
+    ("room 10x12 ft, 6 panels, 2 benches, matt walls, 1 in grid", lambda: sample("basement-two-benches")),
+    ("rack 2x4 ft, 3 tiers, 6 strips, 1 in grid", lambda: sample("three-tier-greens-rack")),
+    ("tent 4x4 ft + carbon filter + clip fan, reflective film", tent_with_filter_and_fan),
+    ("white-painted room 3 x 3.6 m, open doorway, 2.5 cm grid", white_room),
+)
+
+
+def engine_results(repeats: int, farm: bool, rng: np.random.Generator) -> list[dict]:
+    """Every engine scene, the one-obstacle ratios and (with `farm`) the vertical farm and one of its rows."""
+    results = [bench_scene(name, build(), repeats, True, rng) for name, build in ENGINE_SCENES]
     for name in ("hobby-tent-peppers", "basement-two-benches", "three-tier-greens-rack"):
-        results.append(one_obstacle_ratio(name, args.repeats))
-    if not args.no_farm:
-        farm = build_scene(vertical_farm().room)
-        results.append(bench_scene("vertical farm 964 m2, 5 tiers, 1,000 fixtures, 5 cm grid", farm, 3, False, rng))
+        results.append(one_obstacle_ratio(name, repeats))
+    if farm:
+        farm_scene = build_scene(vertical_farm().room)
+        results.append(
+            bench_scene("vertical farm 964 m2, 5 tiers, 1,000 fixtures, 5 cm grid", farm_scene, 3, False, rng)
+        )
         one_row = build_scene(vertical_farm(rows=1).room)
-        r = bench_scene("one farm row (100 fixtures), for the brute-force ratio", one_row, 3, True, rng)
-        results.append(r)
+        results.append(bench_scene("one farm row (100 fixtures), for the brute-force ratio", one_row, 3, True, rng))
+    return results
+
+
+def print_engine_table(results: list[dict]) -> None:
     print(
         f"{'scene':<62}{'points':>9}{'fix':>6}{'cold ms':>10}{'full ms':>10}{'drag ms':>9}{'peak MiB':>10}"
         f"{'brute ms':>10}{'speed-up':>9}{'RMS diff':>9}"
@@ -387,6 +257,28 @@ def main(argv: list[str] | None = None) -> int:
             f"{r['drag_ms']:>9.1f}{r['peak_mib']:>10.1f}"
             + (f"{r['brute_ms']:>10.0f}{r['speedup']:>8.1f}x{r['rms_vs_brute']:>9.2%}" if "brute_ms" in r else "")
         )
+
+
+def browser_figures() -> list[dict]:
+    """Drag preview and drop latency in Chromium on the sample tent and basement room (:mod:`app.bench_browser`)."""
+    from app.bench_browser import browser_latency
+
+    results = []
+    for r in browser_latency(["hobby-tent-4-x-4-ft-peppers", "basement-room-10-x-12-ft-two-benches"]):
+        print(
+            f"browser {r['room']}: drag preview, pointer move to painted frame median {r['frame_ms']:.1f} ms "
+            f"(at most {r['frames_per_s_bound']:.0f} frames/s by latency; paint {r['paint_ms']:.1f} ms, max {r['max_frame_ms']:.0f} ms); "
+            f"mouse-up to exact figures median {r['drop_ms']:.0f} ms (max {r['max_drop_ms']:.0f}), "
+            f"to the redrawn map {r['drop_map_ms']:.0f} ms"
+        )
+        results.append({"scene": "browser " + r["room"], **r})
+    return results
+
+
+def main(argv: list[str] | None = None) -> int:
+    args = _arguments(argv)
+    results = engine_results(args.repeats, not args.no_farm, np.random.default_rng(1))
+    print_engine_table(results)
     if not args.no_planner:
         from app.bench_planner import planner_bench
 
@@ -394,14 +286,7 @@ def main(argv: list[str] | None = None) -> int:
     if not args.no_year:
         results.append(bench_year())
     if args.browser:
-        for r in browser_latency(["hobby-tent-4-x-4-ft-peppers", "basement-room-10-x-12-ft-two-benches"]):
-            print(
-                f"browser {r['room']}: drag preview, pointer move to painted frame median {r['frame_ms']:.1f} ms "
-                f"(at most {r['frames_per_s_bound']:.0f} frames/s by latency; paint {r['paint_ms']:.1f} ms, max {r['max_frame_ms']:.0f} ms); "
-                f"mouse-up to exact figures median {r['drop_ms']:.0f} ms (max {r['max_drop_ms']:.0f}), "
-                f"to the redrawn map {r['drop_map_ms']:.0f} ms"
-            )
-            results.append({"scene": "browser " + r["room"], **r})
+        results += browser_figures()
     if args.safety:
         results += safety_figures()
     rss = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024
