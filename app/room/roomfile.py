@@ -21,11 +21,13 @@ from pydantic import ValidationError
 
 from app.room import layout, limits
 from app.room.consistency import consistency_problems
+from app.room.consistency import grid_point_count as grid_point_count
+from app.room.consistency import reading_problems as reading_problems
 from app.room.models import FORMAT_NAME, FORMAT_VERSION, RoomFile
 from app.room.problems import Problem, RoomFileError
 
-# Problem, RoomFileError (app/room/problems.py) and consistency_problems (app/room/consistency.py) are imported
-# from here by most callers: this module is the room file's front door.
+# Problem, RoomFileError (app/room/problems.py) and consistency_problems, grid_point_count, reading_problems
+# (app/room/consistency.py) are imported from here by most callers: this module is the room file's front door.
 
 
 def field_path(loc: Iterable[Any]) -> str:

@@ -30,6 +30,7 @@ from app.service.notices import (  # noqa: F401 (CAUTIONS and the night rules ar
 )
 from app.service.scene_builder import build_scene
 from app.service.verdict import allowance_info, dark_allowance
+from app.service.zone_result import UNIFORMITY_NOTE_BELOW as UNIFORMITY_NOTE_BELOW
 from app.service.zone_result import zone_photoperiod_h, zone_result
 
 
