@@ -186,7 +186,6 @@ def _energy_and_circuits(
     canopy_photons_mol_day: float,
 ) -> tuple[list, list, dict, dict, list]:
     """Per-fixture power, circuit loads against the continuous limit, energy, cost and heat."""
-    warnings: list[dict[str, Any]] = []
     fixtures_out, load_by_circuit = [], {c.name: 0.0 for c in room.circuits}
     total_w = kwh_day = 0.0
     for f in room.fixtures:
@@ -209,6 +208,30 @@ def _energy_and_circuits(
                 "weight_kg": t.weight_kg,
             }
         )
+    circuits_out, warnings = _circuit_loads(room, load_by_circuit)
+    price = room.schedule.electricity_price_per_kwh
+    umol_per_j = (emitted / total_w) if total_w > 0 else 0.0
+    energy = {
+        "power_w": total_w,
+        "kwh_per_day": kwh_day,
+        "kwh_per_month": kwh_day * elec.DAYS_PER_MONTH,
+        "cost_per_day": kwh_day * price,
+        "cost_per_month": kwh_day * price * elec.DAYS_PER_MONTH,
+        "currency": room.schedule.currency,
+        "price_per_kwh": price,
+        "layout_umol_per_j": umol_per_j,
+        "canopy_share_of_emitted": canopy_flux / emitted if emitted > 0 else 0.0,
+        "canopy_mol_per_kwh": canopy_photons_mol_day / kwh_day if kwh_day > 0 else 0.0,
+        "month_days": elec.DAYS_PER_MONTH,
+    }
+    heat = {"w": total_w, "btu_h": float(elec.heat_btu_h(total_w))}
+
+    return fixtures_out, circuits_out, energy, heat, warnings
+
+
+def _circuit_loads(room: Room, load_by_circuit: dict[str, float]) -> tuple[list[dict[str, Any]], list[dict[str, Any]]]:
+    """Each circuit's load and current against its continuous limit (80 % rule), and a warning for each over it."""
+    warnings: list[dict[str, Any]] = []
     v = room.schedule.supply_voltage_v
     circuits_out = []
     for c in room.circuits:
@@ -238,24 +261,7 @@ def _energy_and_circuits(
                     fixture=None,
                 )
             )
-    price = room.schedule.electricity_price_per_kwh
-    umol_per_j = (emitted / total_w) if total_w > 0 else 0.0
-    energy = {
-        "power_w": total_w,
-        "kwh_per_day": kwh_day,
-        "kwh_per_month": kwh_day * elec.DAYS_PER_MONTH,
-        "cost_per_day": kwh_day * price,
-        "cost_per_month": kwh_day * price * elec.DAYS_PER_MONTH,
-        "currency": room.schedule.currency,
-        "price_per_kwh": price,
-        "layout_umol_per_j": umol_per_j,
-        "canopy_share_of_emitted": canopy_flux / emitted if emitted > 0 else 0.0,
-        "canopy_mol_per_kwh": canopy_photons_mol_day / kwh_day if kwh_day > 0 else 0.0,
-        "month_days": elec.DAYS_PER_MONTH,
-    }
-    heat = {"w": total_w, "btu_h": float(elec.heat_btu_h(total_w))}
-
-    return fixtures_out, circuits_out, energy, heat, warnings
+    return circuits_out, warnings
 
 
 def _budget(scene) -> dict[str, Any]:
