@@ -347,3 +347,19 @@ def test_an_opening_wide_rather_than_long_keeps_its_axes(height):
     turned = t.model_copy(update={"geometry": t.geometry.model_copy(update={"length_m": 1.0, "width_m": 0.2})})
     wrong = compute_scene((emitter_for("F2", turned, 10.0, 10.0, height, 0.0, 100.0),), (g,), Enclosure(20, 20, 3))
     assert np.abs(wrong[0].ppfd - ref).max() > 0.15 * ref.max()
+
+
+def test_declared_flux_that_disagrees_with_the_table_is_said(client):
+    """The zonal integral of a Lambertian table is π·I0 (Lambert); a file declaring twice that is flagged, one
+    declaring it within the rounding of its table is not."""
+    params = {"kind": "ies", "flux_unit": "photon", "power_w": 2000}
+    head = {"Content-Type": "application/octet-stream"}
+
+    def codes(lumens):
+        r = client.post("/api/photometry/import", params=params, content=ies_text(lumens=lumens).encode(), headers=head)
+        assert r.status_code == 200, r.text
+        return {f["code"]: f for f in r.json()["report"]["findings"]}
+
+    doubled = codes(2 * np.pi * I0)
+    assert "declared_flux_disagrees" in doubled and "50%" in doubled["declared_flux_disagrees"]["message"]
+    assert "declared_flux_disagrees" not in codes(np.pi * I0 * 1.01)
