@@ -10,7 +10,7 @@ import re
 from typing import Any
 
 from app.engine import electrical as elec
-from app.room.models import Room
+from app.room.models import SURFACES, Room
 from app.room.units import fmt_current, fmt_number, format_area, format_length, format_weight
 from app.service.sheet_geometry import hanging_points_local, lit_zone, tiers
 from app.service.sheet_maps import hatch_key_svg, heatmap_svg, legend_svg, shared_scale
@@ -27,6 +27,27 @@ DEFINITIONS = (
     "canopy, from the floor. Rotation 0° means the fixture's length runs left to right (along the front wall); "
     "angles turn counter-clockwise seen from above. Positions are to the fixture's centre."
 )
+
+
+def _finish_words(kind: str, reflectance: float, label: str) -> str:
+    if kind == "open":
+        return "open"
+    if kind == "absorbing":
+        return f"{label} (absorbing)" if label and label.lower() != "absorbing" else "absorbing"
+    return f"{label} ({kind}, {reflectance:g})" if label else f"{kind}, {reflectance:g}"
+
+
+def walls_text(room: Room) -> str:
+    """The walls and ceiling as the sheet states them: one finish for all, or each surface's own (grouped)."""
+    if not room.surface_finishes:
+        wf = room.wall_finish
+        words = f"{wf.label or wf.kind} ({wf.kind}, {wf.reflectance:g})"
+        return words + (f"; open: {', '.join(room.open_sides)}" if room.open_sides else "")
+    groups: dict[str, list[str]] = {}
+    for s in SURFACES:
+        f = room.finish_of(s)
+        groups.setdefault(_finish_words(f.kind, f.reflectance, f.label), []).append(s)
+    return "; ".join(f"{', '.join(names)}: {words}" for words, names in groups.items())
 
 
 def _circuit_order(room: Room) -> list[str]:
@@ -106,7 +127,13 @@ def colour_legend(analysis: dict[str, Any]) -> dict[str, Any] | None:
         return None
     sc = shared_scale(analysis["zones"])
     dark, hot = hatch_key_svg()
-    return {"svg": legend_svg(sc), "min": fmt_number(sc.lo, 0), "max": fmt_number(sc.hi, 0), "dark_key": dark, "hot_key": hot}
+    return {
+        "svg": legend_svg(sc),
+        "min": fmt_number(sc.lo, 0),
+        "max": fmt_number(sc.hi, 0),
+        "dark_key": dark,
+        "hot_key": hot,
+    }
 
 
 def fixtures_to_hang(room: Room) -> list[dict[str, Any]]:
@@ -144,8 +171,11 @@ def bill_of_materials(room: Room) -> dict[str, Any]:
             continue
         g = t.geometry
         n, hp = len(ids), len(hanging_points_local(t))
-        size = "point source" if g.kind == "point" else f"{format_length(g.length_m, u, True)} × " + format_length(
-            g.bar_width_m if g.kind == "bar" else g.width_m, u, True
+        size = (
+            "point source"
+            if g.kind == "point"
+            else f"{format_length(g.length_m, u, True)} × "
+            + format_length(g.bar_width_m if g.kind == "bar" else g.width_m, u, True)
         )
         if g.kind == "bar_array":
             size += f", {g.bar_count} bars"
@@ -161,7 +191,11 @@ def bill_of_materials(room: Room) -> dict[str, Any]:
                 "hanging_each": hp,
                 "hanging_total": hp * n,
                 "hanging_recorded": bool(t.hanging_points_m),
-                "notes": "; ".join(x for x in (t.cord_note and f"cord: {t.cord_note}", t.driver_note and f"driver: {t.driver_note}") if x),
+                "notes": "; ".join(
+                    x
+                    for x in (t.cord_note and f"cord: {t.cord_note}", t.driver_note and f"driver: {t.driver_note}")
+                    if x
+                ),
                 "price_each": fmt_number(t.price, 2) if t.price is not None else "–",
                 "price_total": fmt_number(t.price * n, 2) if t.price is not None else "–",
                 "ids": ", ".join(ids),
@@ -181,7 +215,8 @@ def bill_of_materials(room: Room) -> dict[str, Any]:
         "rows": rows,
         "count": totals["count"],
         "hanging_points": totals["hanging"],
-        "weight_total": format_weight(totals["weight_kg"], u) + ("" if totals["weight_known"] else " (some types have no weight)"),
+        "weight_total": format_weight(totals["weight_kg"], u)
+        + ("" if totals["weight_known"] else " (some types have no weight)"),
         "weight_total_kg": totals["weight_kg"],
         "price_total": fmt_number(totals["price"], 2) if totals["priced"] and rows else None,
         "currency": room.schedule.currency,

@@ -162,7 +162,9 @@ def test_recorded_hanging_points_entry_notes_and_price(tent_doc):
 
     doc = copy.deepcopy(tent_doc)
     t = doc["room"]["fixture_types"][0]
-    t.update(hanging_points_m=[[-0.25, 0.0], [0.25, 0.0]], cord_note="1.8 m, grounded plug", driver_note="remote", price=120)
+    t.update(
+        hanging_points_m=[[-0.25, 0.0], [0.25, 0.0]], cord_note="1.8 m, grounded plug", driver_note="remote", price=120
+    )
     doc["room"]["entry"] = {"side": "left", "offset_m": 0.3, "label": "Zip"}
     rf = parse_room_file(json.dumps(doc))
     page = sheet("x", rf, analyse(rf), "a4")
@@ -175,12 +177,20 @@ def test_recorded_hanging_points_entry_notes_and_price(tent_doc):
     assert any(t.text == "Zip (left wall)" for t in svg.iter(SVG + "text"))
     # In the DXF the points sit at the recorded offsets, turned with the fixture (90°: local x becomes +y).
     dxf = ezdxf.read(io.StringIO(plan_dxf(rf.room).decode()))
-    pts = sorted((round(p.dxf.location.x * 0.0254, 4), round(p.dxf.location.y * 0.0254, 4)) for p in dxf.modelspace().query("POINT"))
+    pts = sorted(
+        (round(p.dxf.location.x * 0.0254, 4), round(p.dxf.location.y * 0.0254, 4))
+        for p in dxf.modelspace().query("POINT")
+    )
     want = []
     for f in doc["room"]["fixtures"]:
         a = math.radians(f["rotation_deg"])
         for u, v in t["hanging_points_m"]:
-            want.append((round(f["x_m"] + u * math.cos(a) - v * math.sin(a), 4), round(f["y_m"] + u * math.sin(a) + v * math.cos(a), 4)))
+            want.append(
+                (
+                    round(f["x_m"] + u * math.cos(a) - v * math.sin(a), 4),
+                    round(f["y_m"] + u * math.sin(a) + v * math.cos(a), 4),
+                )
+            )
     assert pts == sorted(want)
 
 
@@ -205,3 +215,24 @@ def test_sheet_prints_the_grow_cycle_week_by_week(client):
     assert [r[6] for r in table["rows"]] == [f"{w['dli_avg']:.1f}" for w in weeks]
     html = client.get(f"/rooms/{rid}/sheet").text
     assert "Grow cycle by week" in html
+
+
+def test_walls_line_states_each_surface_finish():
+    """The title block's Walls line: one finish for a 0.1 room, every surface's own once it has any."""
+    path = next(p for p in SAMPLES if p.stem == "hobby-tent-peppers")
+    doc = json.loads(path.read_text(encoding="utf-8"))
+    wf = doc["room"]["wall_finish"]
+    rf = parse_room_file(json.dumps(doc).encode())
+    assert (
+        sheet("x", rf, analyse(rf), "letter")["room"]["walls"] == f"{wf['label']} ({wf['kind']}, {wf['reflectance']:g})"
+    )
+    doc["room"]["surface_finishes"] = {
+        "ceiling": {"kind": "absorbing"},
+        "back": {"kind": "diffuse", "reflectance": 0.5},
+    }
+    doc["room"]["open_sides"] = ["left"]
+    rf = parse_room_file(json.dumps(doc).encode())
+    walls = sheet("x", rf, analyse(rf), "letter")["room"]["walls"]
+    # Listed surfaces take their own finish; the rest keep the open side or the room-wide finish (Room.finish_of).
+    own = f"{wf['label']} ({wf['kind']}, {wf['reflectance']:g})"
+    assert walls == f"left: open; right, front: {own}; back: diffuse, 0.5; ceiling: absorbing", walls
