@@ -127,13 +127,7 @@ def colour_legend(analysis: dict[str, Any]) -> dict[str, Any] | None:
         return None
     sc = shared_scale(analysis["zones"])
     dark, hot = hatch_key_svg()
-    return {
-        "svg": legend_svg(sc),
-        "min": fmt_number(sc.lo, 0),
-        "max": fmt_number(sc.hi, 0),
-        "dark_key": dark,
-        "hot_key": hot,
-    }
+    return {"svg": legend_svg(sc), "min": fmt_number(sc.lo, 0), "max": fmt_number(sc.hi, 0), "dark_key": dark, "hot_key": hot}
 
 
 def fixtures_to_hang(room: Room) -> list[dict[str, Any]]:
@@ -171,11 +165,8 @@ def bill_of_materials(room: Room) -> dict[str, Any]:
             continue
         g = t.geometry
         n, hp = len(ids), len(hanging_points_local(t))
-        size = (
-            "point source"
-            if g.kind == "point"
-            else f"{format_length(g.length_m, u, True)} × "
-            + format_length(g.bar_width_m if g.kind == "bar" else g.width_m, u, True)
+        size = "point source" if g.kind == "point" else f"{format_length(g.length_m, u, True)} × " + format_length(
+            g.bar_width_m if g.kind == "bar" else g.width_m, u, True
         )
         if g.kind == "bar_array":
             size += f", {g.bar_count} bars"
@@ -191,11 +182,7 @@ def bill_of_materials(room: Room) -> dict[str, Any]:
                 "hanging_each": hp,
                 "hanging_total": hp * n,
                 "hanging_recorded": bool(t.hanging_points_m),
-                "notes": "; ".join(
-                    x
-                    for x in (t.cord_note and f"cord: {t.cord_note}", t.driver_note and f"driver: {t.driver_note}")
-                    if x
-                ),
+                "notes": "; ".join(x for x in (t.cord_note and f"cord: {t.cord_note}", t.driver_note and f"driver: {t.driver_note}") if x),
                 "price_each": fmt_number(t.price, 2) if t.price is not None else "–",
                 "price_total": fmt_number(t.price * n, 2) if t.price is not None else "–",
                 "ids": ", ".join(ids),
@@ -215,8 +202,7 @@ def bill_of_materials(room: Room) -> dict[str, Any]:
         "rows": rows,
         "count": totals["count"],
         "hanging_points": totals["hanging"],
-        "weight_total": format_weight(totals["weight_kg"], u)
-        + ("" if totals["weight_known"] else " (some types have no weight)"),
+        "weight_total": format_weight(totals["weight_kg"], u) + ("" if totals["weight_known"] else " (some types have no weight)"),
         "weight_total_kg": totals["weight_kg"],
         "price_total": fmt_number(totals["price"], 2) if totals["priced"] and rows else None,
         "currency": room.schedule.currency,

@@ -162,9 +162,7 @@ def test_recorded_hanging_points_entry_notes_and_price(tent_doc):
 
     doc = copy.deepcopy(tent_doc)
     t = doc["room"]["fixture_types"][0]
-    t.update(
-        hanging_points_m=[[-0.25, 0.0], [0.25, 0.0]], cord_note="1.8 m, grounded plug", driver_note="remote", price=120
-    )
+    t.update(hanging_points_m=[[-0.25, 0.0], [0.25, 0.0]], cord_note="1.8 m, grounded plug", driver_note="remote", price=120)
     doc["room"]["entry"] = {"side": "left", "offset_m": 0.3, "label": "Zip"}
     rf = parse_room_file(json.dumps(doc))
     page = sheet("x", rf, analyse(rf), "a4")
@@ -177,20 +175,12 @@ def test_recorded_hanging_points_entry_notes_and_price(tent_doc):
     assert any(t.text == "Zip (left wall)" for t in svg.iter(SVG + "text"))
     # In the DXF the points sit at the recorded offsets, turned with the fixture (90°: local x becomes +y).
     dxf = ezdxf.read(io.StringIO(plan_dxf(rf.room).decode()))
-    pts = sorted(
-        (round(p.dxf.location.x * 0.0254, 4), round(p.dxf.location.y * 0.0254, 4))
-        for p in dxf.modelspace().query("POINT")
-    )
+    pts = sorted((round(p.dxf.location.x * 0.0254, 4), round(p.dxf.location.y * 0.0254, 4)) for p in dxf.modelspace().query("POINT"))
     want = []
     for f in doc["room"]["fixtures"]:
         a = math.radians(f["rotation_deg"])
         for u, v in t["hanging_points_m"]:
-            want.append(
-                (
-                    round(f["x_m"] + u * math.cos(a) - v * math.sin(a), 4),
-                    round(f["y_m"] + u * math.sin(a) + v * math.cos(a), 4),
-                )
-            )
+            want.append((round(f["x_m"] + u * math.cos(a) - v * math.sin(a), 4), round(f["y_m"] + u * math.sin(a) + v * math.cos(a), 4)))
     assert pts == sorted(want)
 
 
