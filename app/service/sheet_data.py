@@ -44,7 +44,7 @@ def walls_text(room: Room) -> str:
         words = f"{wf.label or wf.kind} ({wf.kind}, {wf.reflectance:g})"
         return words + (f"; open: {', '.join(room.open_sides)}" if room.open_sides else "")
     groups: dict[str, list[str]] = {}
-    for s in SURFACES:
+    for s in (*SURFACES, "floor") if "floor" in room.surface_finishes else SURFACES:
         f = room.finish_of(s)
         groups.setdefault(_finish_words(f.kind, f.reflectance, f.label), []).append(s)
     return "; ".join(f"{', '.join(names)}: {words}" for words, names in groups.items())
