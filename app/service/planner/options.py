@@ -57,6 +57,7 @@ class ZoneLayout:
     positions: list[tuple[float, float]] = field(default_factory=list)
     full_model: bool = False
     square_zone: bool = False  # rows × cols and cols × rows are the same choice over a square zone
+    on_grid: bool = False  # every centre is on the room's hanging grid (rails or hook points)
 
     @property
     def count(self) -> int:
@@ -89,7 +90,7 @@ class ZoneLayout:
         return (
             f"{self.zone_name}: {self.count} × {self.type_name} ({rows}{', staggered' if self.staggered else ''}"
             f"{', turned 90°' if self.rotation_deg else ''}), {100 * self.above_canopy_m:.0f} cm above the canopy, "
-            f"at {100 * self.dimming:.0f} %"
+            f"at {100 * self.dimming:.0f} %{', centres on the hanging grid' if self.on_grid else ''}"
         )
 
     def summary(self) -> dict:
@@ -100,4 +101,5 @@ class ZoneLayout:
             "count": self.count,
             "power_w": self.power_w,
             "dimming_pct": round(100 * self.dimming),
+            "on_grid": self.on_grid,
         }
