@@ -43,8 +43,16 @@ def rack_in_a_room(*obstacles) -> dict:
     return doc
 
 
-SIDE_PANEL = {"id": "panel-right", "name": "Side panel", "x_m": RACK_W, "y_m": 0.0, "z_m": 0.0,
-              "width_m": 0.01, "length_m": RACK_L, "height_m": 1.88}
+SIDE_PANEL = {
+    "id": "panel-right",
+    "name": "Side panel",
+    "x_m": RACK_W,
+    "y_m": 0.0,
+    "z_m": 0.0,
+    "width_m": 0.01,
+    "length_m": RACK_L,
+    "height_m": 1.88,
+}
 
 
 def test_the_sample_rack_keeps_the_gap_to_its_closed_film_walls():
