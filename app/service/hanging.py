@@ -9,17 +9,21 @@ from __future__ import annotations
 
 import math
 
-from app.room.models import HangingGrid, Room
+from app.room.models import Room
 from app.room.units import format_length
 
 MAX_LINES_LISTED = 12  # the sheet lists at most this many lines per axis, then says "every ... from ..."
 
 
-def lines_m(origin_m: float, pitch_m: float, lo_m: float, hi_m: float) -> list[float]:
-    """Every line ``origin + k × pitch`` in [lo, hi] (ends included), rounded to 0.1 mm."""
-    k0 = math.ceil(round((lo_m - origin_m) / pitch_m, 9))
-    k1 = math.floor(round((hi_m - origin_m) / pitch_m, 9))
-    return [round(origin_m + k * pitch_m, 4) for k in range(k0, k1 + 1)]
+def line_range(origin_m: float, pitch_m: float, lo_m: float, hi_m: float) -> tuple[int, int]:
+    """(first k, last k) of the lines ``origin + k × pitch`` in [lo, hi]; empty when first > last."""
+    return math.ceil(round((lo_m - origin_m) / pitch_m, 9)), math.floor(round((hi_m - origin_m) / pitch_m, 9))
+
+
+def lines_m(origin_m: float, pitch_m: float, lo_m: float, hi_m: float, limit: int = MAX_LINES_LISTED) -> list[float]:
+    """The lines in [lo, hi] (ends included), rounded to 0.1 mm: at most ``limit`` of them, from the first."""
+    k0, k1 = line_range(origin_m, pitch_m, lo_m, hi_m)
+    return [round(origin_m + k * pitch_m, 4) for k in range(k0, min(k1, k0 + limit - 1) + 1)]
 
 
 def snap_m(value_m: float, origin_m: float, pitch_m: float | None, lo_m: float, hi_m: float) -> float | None:
@@ -34,24 +38,19 @@ def snap_m(value_m: float, origin_m: float, pitch_m: float | None, lo_m: float, 
     return None
 
 
-def on_grid(grid: HangingGrid, x_m: float, y_m: float, tol_m: float = 5e-4) -> bool:
-    """Whether a centre sits on the grid's lines (within half a millimetre)."""
-    for v, o, p in ((x_m, grid.origin_x_m, grid.pitch_x_m), (y_m, grid.origin_y_m, grid.pitch_y_m)):
-        if p is not None and abs(v - o - round((v - o) / p) * p) > tol_m:
-            return False
-    return True
-
-
 def _axis_words(origin_m: float, pitch_m: float, wall_m: float, wall: str, units: str) -> str:
-    at = lines_m(origin_m, pitch_m, 0.0, wall_m)
-    if not at:
+    k0, k1 = line_range(origin_m, pitch_m, 0.0, wall_m)
+    count = k1 - k0 + 1
+    if count <= 0:
         return f"no line inside the room from the {wall} wall"
-    if len(at) > MAX_LINES_LISTED:
+    if count > MAX_LINES_LISTED:
+        first, last = (round(origin_m + k * pitch_m, 4) for k in (k0, k1))
         return (
             f"every {format_length(pitch_m, units, fine=True)} from the {wall} wall, first at "
-            f"{format_length(at[0], units, fine=True)}, last at {format_length(at[-1], units, fine=True)} ({len(at)} lines)"
+            f"{format_length(first, units, fine=True)}, last at {format_length(last, units, fine=True)} ({count:,} lines)"
         )
-    return f"{', '.join(format_length(v, units, fine=True) for v in at)} from the {wall} wall"
+    at = lines_m(origin_m, pitch_m, 0.0, wall_m)
+    return f"at {', '.join(format_length(v, units, fine=True) for v in at)} from the {wall} wall"
 
 
 def grid_words(room: Room, units: str | None = None) -> str | None:
@@ -63,9 +62,9 @@ def grid_words(room: Room, units: str | None = None) -> str | None:
     name = g.label or ("Hook points" if g.pitch_x_m and g.pitch_y_m else "Rails")
     parts = []
     if g.pitch_y_m is not None:
-        lead = "rails along x at" if g.pitch_x_m is None else "hook rows at"
+        lead = "rails along x" if g.pitch_x_m is None else "hook rows"
         parts.append(f"{lead} {_axis_words(g.origin_y_m, g.pitch_y_m, room.length_m, 'front', u)}")
     if g.pitch_x_m is not None:
-        lead = "rails along y at" if g.pitch_y_m is None else "hook columns at"
+        lead = "rails along y" if g.pitch_y_m is None else "hook columns"
         parts.append(f"{lead} {_axis_words(g.origin_x_m, g.pitch_x_m, room.width_m, 'left', u)}")
     return f"{name}: {'; '.join(parts)}. Fixture centres hang on these lines."

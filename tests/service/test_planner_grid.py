@@ -139,3 +139,14 @@ def test_the_printed_sheet_shows_the_grid(client):
     plain = sample_doc("hobby-tent-peppers")
     rid = client.post("/api/rooms", content=json.dumps(plain), headers=JSON).json()["id"]
     assert "Hanging grid" not in client.get(f"/rooms/{rid}/sheet").text
+
+
+def test_a_fine_grid_is_summarised_not_listed():
+    """1 mm rails over the 1.2192 m tent: lines at k mm for k = 0 ... 1219, 1,220 of them (hand count); the sheet
+    gives the pitch, the first and the last instead of listing them, and a 1 µm pitch is worded as quickly."""
+    rf = tent({"origin_x_m": 0.0, "origin_y_m": 0.0, "pitch_y_m": 0.001})
+    words = grid_words(rf.room, "metric")
+    first, last = ref.length(0.0, "metric", True), ref.length(1.219, "metric", True)
+    assert f"rails along x every 0.1 cm from the front wall, first at {first}, last at {last} (1,220 lines)" in words
+    assert "(1,219,201 lines)" in grid_words(tent({"origin_x_m": 0.0, "origin_y_m": 0.0, "pitch_y_m": 1e-6}).room)
+    assert lines_m(0.0, 1e-6, 0.0, 1.2192) == [round(k * 1e-6, 4) for k in range(12)]
