@@ -19,7 +19,8 @@ class PlanOptions:
     objective : "power" (least input power), "count" (fewest fixtures) or "cost" (purchase price of the
         fixtures plus the electricity over ``years``).
     target : dim to the "bottom" of the DLI band (least power that meets it) or towards its "middle".
-    min_gap_m : least gap between two fixtures' footprints, and between a footprint and a wall.
+    min_gap_m : least gap between two fixtures' footprints, and between a footprint and a closed side (a wall,
+        or on a rack the tier's own closed shelf edge: :func:`app.service.planner.arrange.spans`).
     """
 
     type_ids: tuple[str, ...] = ()
