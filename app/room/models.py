@@ -269,6 +269,30 @@ class Entry(Strict):
     label: str = Field(default="Entry", min_length=1, max_length=40)
 
 
+class HangingGrid(Strict):
+    """Rails or hook points the fixtures must hang from: fixture centres sit on lines ``origin + k × pitch``.
+
+    A pitch along one axis only is a set of rails (free along the other axis); pitches along both are a
+    grid of hook points. Added in 0.2; a file without it hangs fixtures anywhere, as in 0.1.
+    """
+
+    origin_x_m: Metres = Field(description="A rail or hook line's distance from the left wall [m].")
+    origin_y_m: Metres = Field(description="A rail or hook line's distance from the front wall [m].")
+    pitch_x_m: float | None = Field(
+        default=None, gt=0, le=limits.MAX_ROOM_SIDE_M, description="Spacing of the lines along x; none: free along x."
+    )
+    pitch_y_m: float | None = Field(
+        default=None, gt=0, le=limits.MAX_ROOM_SIDE_M, description="Spacing of the lines along y; none: free along y."
+    )
+    label: str = Field(default="", max_length=80, description="What the grid is, for the sheet (e.g. ceiling rails).")
+
+    @model_validator(mode="after")
+    def _some_pitch(self) -> HangingGrid:
+        if self.pitch_x_m is None and self.pitch_y_m is None:
+            raise ValueError("a hanging grid needs pitch_x_m or pitch_y_m (or both); leave hanging_grid out for none")
+        return self
+
+
 class Room(Strict):
     name: Label
     width_m: PositiveMetres = Field(description="Along x (left to right on the plan).")
@@ -304,6 +328,9 @@ class Room(Strict):
     output_age: OutputAge = Field(default_factory=OutputAge)
     readings: list[ReadingSet] = Field(default_factory=list, max_length=limits.MAX_READING_SETS)
     payback: PaybackPlan | None = None
+    hanging_grid: HangingGrid | None = Field(
+        default=None, description="Rails or hook points fixture centres must sit on; none: fixtures hang anywhere."
+    )
 
     @field_validator("surface_finishes")
     @classmethod

@@ -15,6 +15,7 @@ from app.room.storage import RoomStore
 from app.room.units import format_length
 from app.service import sheet_data
 from app.service.colours import colour_scale
+from app.service.hanging import grid_words
 from app.service.meter import sheet_summary as meter_sheet_summary
 from app.service.verdict import allowance_info
 
@@ -81,6 +82,7 @@ def sheet(room_id: str, room_file: RoomFile, analysis: dict[str, Any], paper: st
             "walls": sheet_data.walls_text(room),
             "entry": f"{room.entry.label}, {room.entry.side} wall",
             "voltage": f"{room.schedule.supply_voltage_v:g} V",
+            "hanging_grid": grid_words(room, u),
         },
         "definitions": sheet_data.DEFINITIONS,
         "tier_layout": layout,

@@ -1,5 +1,5 @@
 // The room tab: size, walls (one finish, or each its own: surfaces.js), map spacing, the room's own units,
-// schedule and circuits.
+// schedule, hanging grid and circuits.
 // Resizing the room carries the first canopy zone (and any zone or shelf laid out like it) with it.
 
 import * as Units from "../../lib/units.js";
@@ -46,6 +46,29 @@ export function renderRoomPanel() {
   $("r-units").value = r.display_units;
   setIfIdle($("snap-step"), Units.lengthInput(state.snapStep, u));
   for (const el of document.querySelectorAll("[data-unit]")) el.textContent = `(${Units.inputUnit(u)})`;
+  const g = r.hanging_grid;
+  if (g) gridDraft = {};
+  for (const input of document.querySelectorAll("[data-hanging]")) {
+    const v = g ? g[input.dataset.hanging] : null;
+    setIfIdle(input, g ? (v === null || v === undefined ? "" : Units.lengthInput(v, u)) : (gridDraft[input.dataset.hanging] || ""));
+  }
+}
+
+let gridDraft = {}; // boxes typed before the grid has a pitch (nothing to save yet)
+
+/** The hanging grid from its four boxes: null (no grid) when both pitches are blank, else the field. */
+function hangingGridFromBoxes(current) {
+  const out = {};
+  for (const input of document.querySelectorAll("[data-hanging]")) {
+    const key = input.dataset.hanging;
+    if (!input.value.trim()) { clearFieldError(input); out[key] = key.startsWith("pitch") ? null : 0; continue; }
+    const m = lengthOf(input, { positive: key.startsWith("pitch") });
+    if (m === null) return undefined;
+    clearFieldError(input);
+    out[key] = round4(m);
+  }
+  if (out.pitch_x_m === null && out.pitch_y_m === null) return null;
+  return Object.assign({ label: (current && current.label) || "" }, out);
 }
 
 export function renderCircuits() {
@@ -103,6 +126,14 @@ export function wireRoomPanel() {
       const key = input.dataset.schedule, [lo, hi, what] = scheduleRange[key];
       const v = numberOf(input, lo, hi, what);
       if (v !== null) tryCommit(input, (r) => { r.schedule[key] = v; });
+    });
+  }
+  for (const input of document.querySelectorAll("[data-hanging]")) {
+    input.addEventListener("change", () => {
+      gridDraft[input.dataset.hanging] = input.value;
+      const grid = hangingGridFromBoxes(room().hanging_grid);
+      if (grid === undefined || (grid === null && !room().hanging_grid)) return;
+      tryCommit(input, (r) => { r.hanging_grid = grid; });
     });
   }
   $("s-cur").addEventListener("change", () => tryCommit($("s-cur"), (r) => { r.schedule.currency = $("s-cur").value.trim().slice(0, 8) || "USD"; }));
