@@ -150,3 +150,20 @@ def test_a_fine_grid_is_summarised_not_listed():
     assert f"rails along x every 0.1 cm from the front wall, first at {first}, last at {last} (1,220 lines)" in words
     assert "(1,219,201 lines)" in grid_words(tent({"origin_x_m": 0.0, "origin_y_m": 0.0, "pitch_y_m": 1e-6}).room)
     assert lines_m(0.0, 1e-6, 0.0, 1.2192) == [round(k * 1e-6, 4) for k in range(12)]
+
+
+def test_a_fixture_off_the_grid_is_told_where_the_nearest_grid_place_is():
+    doc = sample_doc("hobby-tent-peppers")
+    f = doc["room"]["fixtures"][0]
+    doc["room"]["hanging_grid"] = {"origin_x_m": 0.1, "origin_y_m": 0.1, "pitch_x_m": 0.2, "pitch_y_m": 0.2}
+    f["x_m"], f["y_m"] = 0.5, 0.3  # on the grid
+    on = [w for w in analyse(parse_room_file(json.dumps(doc)))["warnings"] if w["code"] == "fixture_off_grid"]
+    assert all(w["fixture_id"] != f["id"] for w in on)
+    f["x_m"] = 0.43  # 7 cm off the line at 0.5
+    off = [w for w in analyse(parse_room_file(json.dumps(doc)))["warnings"] if w["code"] == "fixture_off_grid"]
+    (w,) = [w for w in off if w["fixture_id"] == f["id"]]
+    # The nearest grid place is (0.5, 0.3) m, said in the room's units by the one display rule.
+    from app.room.units import format_length
+
+    want = [format_length(v, doc["room"].get("display_units", "imperial"), fine=True) for v in (0.5, 0.3)]
+    assert w["severity"] == "info" and all(t in w["fix"] for t in want), w
