@@ -27,7 +27,7 @@ from app.engine.compute import compute_scene
 from app.engine.direct import irradiance_from_nodes
 from app.engine.distributions import lambertian
 from app.engine.emitters import local_nodes
-from app.engine.reflections import image_list, mirror_coordinate
+from app.engine.mirror_images import image_list, mirror_coordinate
 from app.engine.scene import Box, Emitter, Enclosure, Grid
 from app.room.roomfile import parse_room_file
 from app.service.farm import vertical_farm

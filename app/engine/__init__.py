@@ -6,7 +6,8 @@ Modules, from the ground up:
 - :mod:`.scene` small frozen dataclasses describing emitters, receivers, boxes, walls;
 - :mod:`.emitters` quadrature nodes over bars, bar arrays and panels;
 - :mod:`.direct` direct irradiance on a receiver grid, with shadows and culling;
-- :mod:`.reflections` mirror images (specular walls) and radiosity (matt walls);
+- :mod:`.mirror_images` mirror images (specular walls); :mod:`.radiosity` matt-wall patches and their
+  exitance; :mod:`.patch_transfer` patches to the canopy map;
 - :mod:`.budget` a deterministic ray tally of where every emitted photon goes;
 - :mod:`.compute` the chain that turns a scene into per-zone PPFD maps;
 - :mod:`.metrics`, :mod:`.dli`, :mod:`.electrical` the figures a grower decides from.

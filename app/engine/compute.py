@@ -13,7 +13,9 @@ import numpy as np
 
 from app.engine.cache import MIB, memoise
 from app.engine.direct import Patch, direct_patch
-from app.engine.reflections import diffuse_map, patch_irradiance, radiosity_operator, specular_map
+from app.engine.mirror_images import specular_map
+from app.engine.patch_transfer import diffuse_map
+from app.engine.radiosity import patch_irradiance, radiosity_operator
 from app.engine.scene import Box, Emitter, Enclosure, Grid
 from app.room.layout import covers_from_above  # pure numbers: the one layout rule's tolerance
 

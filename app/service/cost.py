@@ -23,10 +23,11 @@ from dataclasses import dataclass, field, replace
 
 import numpy as np
 
-from app.engine import reflections as rf
+from app.engine import mirror_images as rf
 from app.engine.compute import covering_height_m, lights_grid, reference_drop_m
 from app.engine.direct import CULL_RELATIVE, cull_radius_m, nearest_distance_m, relevant_boxes
 from app.engine.emitters import local_nodes
+from app.engine.radiosity import wall_patches
 from app.engine.scene import Emitter, Grid
 from app.room.models import Room
 from app.service.scene_builder import build_scene
@@ -170,7 +171,7 @@ def estimate(room: Room) -> CostEstimate:
                 _image_terms(e, g, enc, units)
     points = sum(g.nx * g.ny for g in grids)
     if enc.has_diffuse and emitters:
-        n_patches = len(rf.wall_patches(enc).areas)
+        n_patches = len(wall_patches(enc).areas)
         nodes = sum(_node_count(e, 0.5) for e in emitters)
         units["patch_evaluations"] += 4 * n_patches * nodes + n_patches**2 * (1 + len(boxes)) + 4 * n_patches * points
     units["points"] = float(points)

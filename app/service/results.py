@@ -286,6 +286,11 @@ class MapFit(Result):
     rms_error: float = Field(description="RMS residual relative to the map's mean")
     max_abs_error_umol_m2_s: float
     residuals: list[list[float]]
+    at_bound: list[str] = Field(
+        default_factory=list,
+        description="Fitted figures that stopped at the edge of what the fit tries (widest_beam, narrowest_beam, "
+        "largest_emitter): the fit is then not a trustworthy fixture",
+    )
 
 
 class Finding(Result):

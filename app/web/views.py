@@ -78,8 +78,7 @@ def sheet(room_id: str, room_file: RoomFile, analysis: dict[str, Any], paper: st
             "name": room.name,
             "size": f"{format_length(room.width_m, u)} × {format_length(room.length_m, u)}, ceiling "
             f"{format_length(room.height_m, u)}",
-            "walls": f"{room.wall_finish.label or room.wall_finish.kind} ({room.wall_finish.kind}, "
-            f"{room.wall_finish.reflectance:g})" + (f"; open: {', '.join(room.open_sides)}" if room.open_sides else ""),
+            "walls": sheet_data.walls_text(room),
             "entry": f"{room.entry.label}, {room.entry.side} wall",
             "voltage": f"{room.schedule.supply_voltage_v:g} V",
         },

@@ -7,7 +7,7 @@ from numpy.testing import assert_allclose
 from app.engine.budget import photon_budget
 from app.engine.compute import clear_caches, compute_scene
 from app.engine.distributions import cosine_power, lambertian
-from app.engine.reflections import _axis_weights, image_list
+from app.engine.mirror_images import _axis_weights, image_list
 from app.engine.scene import Box, Emitter, Enclosure, Grid
 from tests.engine.reference_tracer import sample_cos_power, sample_emitter, trace
 

@@ -105,7 +105,7 @@ def test_closed_matt_box_interreflection_sum(rho):
     # Every surface of a closed box (floor included) matt with one reflectance ρ: each photon lands on some
     # surface, a share ρ goes on, so the flux arriving on all surfaces together is Φ(1 + ρ + ρ² + …) = Φ/(1 − ρ)
     # whatever the geometry (a geometric series over bounces; textbook, from memory).
-    from app.engine.reflections import patch_irradiance, radiosity_operator, wall_patches
+    from app.engine.radiosity import patch_irradiance, radiosity_operator, wall_patches
 
     kinds = {s: ("diffuse", rho) for s in ("left", "right", "front", "back", "ceiling", "floor")}
     enc = Enclosure(2.0, 3.0, 2.4, surfaces=tuple((s, *k) for s, k in kinds.items()))

@@ -18,7 +18,9 @@ from dataclasses import replace
 import numpy as np
 
 from app.engine.compute import canopy_slabs, compute_scene
-from app.engine.reflections import diffuse_map, patch_irradiance, radiosity_operator, specular_map
+from app.engine.mirror_images import specular_map
+from app.engine.patch_transfer import diffuse_map
+from app.engine.radiosity import patch_irradiance, radiosity_operator
 from app.engine.scene import Grid
 from app.room.models import CanopyZone, FixtureType, Room
 from app.service.maintained import factor_for

@@ -1,4 +1,5 @@
-// The room tab: size, walls, map spacing, the room's own units, schedule and circuits.
+// The room tab: size, walls (one finish, or each its own: surfaces.js), map spacing, the room's own units,
+// schedule and circuits.
 // Resizing the room carries the first canopy zone (and any zone or shelf laid out like it) with it.
 
 import * as Units from "../../lib/units.js";
@@ -6,6 +7,7 @@ import { escapeHtml } from "../../lib/format.js";
 import { $, page, state, room, round4 } from "../state.js";
 import { rename } from "../autosave.js";
 import { setIfIdle, tryCommit, lengthOf, numberOf, showFieldError, clearFieldError } from "../fields.js";
+import { renderSurfaces, wireSurfaces } from "./surfaces.js";
 
 const SAME_M = 0.01;            // edges within 1 cm are "the same"
 const MIN_ZONE_M = 0.05;
@@ -37,6 +39,7 @@ export function renderRoomPanel() {
   $("r-finish").value = key ? key[0] : "";
   setIfIdle($("r-refl"), r.wall_finish.reflectance);
   for (const b of document.querySelectorAll("#r-open input")) b.checked = r.open_sides.includes(b.value);
+  renderSurfaces();
   for (const input of document.querySelectorAll("[data-schedule]")) setIfIdle(input, r.schedule[input.dataset.schedule]);
   setIfIdle($("s-cur"), r.schedule.currency);
   setIfIdle($("room-name"), r.name);
@@ -87,6 +90,7 @@ export function wireRoomPanel() {
     const v = numberOf($("r-refl"), 0, 1, "reflectance");
     if (v !== null) tryCommit($("r-refl"), (r) => { r.wall_finish = Object.assign({}, r.wall_finish, { reflectance: v, label: "Custom" }); });
   });
+  wireSurfaces();
   for (const box of document.querySelectorAll("#r-open input")) {
     box.addEventListener("change", () => tryCommit(box, (r) => {
       r.open_sides = [...document.querySelectorAll("#r-open input")].filter((b) => b.checked).map((b) => b.value);
