@@ -2,8 +2,6 @@
 
 from __future__ import annotations
 
-from typing import Any
-
 from fastapi import APIRouter, Query, Request
 
 from app.engine.fitting import efficacy_findings, fit_findings, fit_ppfd_map, plausibility, predict_at_heights
@@ -14,6 +12,7 @@ from app.room.storage import slugify
 from app.service.photometry import MAX_FILE_BYTES as MAX_PHOTOMETRY_BYTES
 from app.service.photometry import PhotometryError, fixture_type_from, flux_findings, parse_ies, parse_ldt
 from app.service.results import MapFitResult, SpectrumFigures
+from app.service.results_library import ImportedFixture
 from app.web.bodies import MapFitIn, SpectrumIn
 from app.web.errors import ERRORS, ApiError
 
@@ -38,7 +37,7 @@ async def import_photometry(
     umol_per_lumen: float | None = Query(None, gt=0, le=1),
     power_w: float | None = Query(None, gt=0, le=10000),
     name: str = Query("", max_length=120),
-) -> dict[str, Any]:
+) -> ImportedFixture:
     raw = await request.body()
     if len(raw) > MAX_PHOTOMETRY_BYTES:
         raise ApiError(413, "too_large", f"a photometric file over {MAX_PHOTOMETRY_BYTES:,} bytes is refused")
