@@ -1,6 +1,7 @@
-"""Checks that need the whole room file: unique ids, everything inside the room and below the ceiling, known
-crops, stages, fixture types and circuits, fixtures clear of canopies and obstacles, readings inside their zone,
-the year plan, and the canopy grid within its limit. Every problem is returned with its field path."""
+"""Checks that need the whole room file: unique ids; the entry, the hanging grid's origin, zones, obstacles and
+fixtures inside the room and below the ceiling; known crops, stages, fixture types and circuits; fixtures clear of
+canopies and obstacles; readings inside their zone; the year plan; the canopy grid within its limit. Every problem
+is returned with its field path."""
 
 from __future__ import annotations
 
@@ -23,6 +24,7 @@ def consistency_problems(room_file: RoomFile) -> list[Problem]:
     p: list[Problem] = []
     p += _identity_problems(room, circuits)
     p += _entry_problems(room)
+    p += _hanging_grid_problems(room)
     p += _zone_problems(room_file)
     p += _obstacle_problems(room)
     p += _fixture_problems(room, circuits)
@@ -72,6 +74,23 @@ def _entry_problems(room: Room) -> list[Problem]:
         out.append(
             Problem("room.entry.offset_m", f"{e.offset_m:g} m is past the end of the {e.side} wall ({wall:g} m)")
         )
+    return out
+
+
+def _hanging_grid_problems(room: Room) -> list[Problem]:
+    """The hanging grid's origin must lie inside the room."""
+    g = room.hanging_grid
+    if g is None:
+        return []
+    out = []
+    for name, value, side, wall in (
+        ("origin_x_m", g.origin_x_m, "width", room.width_m),
+        ("origin_y_m", g.origin_y_m, "length", room.length_m),
+    ):
+        if value > wall + _EDGE_TOLERANCE_M:
+            out.append(
+                Problem(f"room.hanging_grid.{name}", f"{value:g} m is outside the room (its {side} is {wall:g} m)")
+            )
     return out
 
 
