@@ -33,7 +33,7 @@ HOUR_STEP_H = 0.25  # timers are set in quarter hours
 MIN_FIX_CLEARANCE_M = 0.10  # least height above the canopy a re-hang fix proposes (common practice, no source)
 HEIGHT_STEPS = 8
 MIN_DIMMING_PCT = 10
-LIVE_KINDS = 1  # the live analysis offers a photoperiod fix; check-my-setup every kind (memory, speed)
+LIVE_KINDS = 2  # the live analysis offers a photoperiod or one dimming (no new geometry); check-my-setup every kind
 RETRIES = 3  # candidates tried, nearest first, before a kind of fix is given up
 SERIOUS = ("warning", "error")
 
