@@ -34,6 +34,9 @@ MIN_FIX_CLEARANCE_M = 0.10  # least height above the canopy a re-hang fix propos
 HEIGHT_STEPS = 8
 MIN_DIMMING_PCT = 10
 LIVE_KINDS = 2  # the live analysis offers a photoperiod or one dimming (no new geometry); check-my-setup every kind
+LIVE_DIMMING_BUDGET_S = 0.5
+"""The live analysis checks a dimming fix only when the cost model (app.service.cost) puts those re-analyses
+(each recomputes the dimmed fixtures' light) under this; a bigger room gets its dimming fix from check-my-setup."""
 RETRIES = 3  # candidates tried, nearest first, before a kind of fix is given up
 SERIOUS = ("warning", "error")
 
@@ -280,6 +283,15 @@ def zone_case(rf: RoomFile, base: dict[str, Any], index: int, ppfd: np.ndarray, 
                     stage.ppfd_stress_umol_m2_s, longest, area, dark_allowance(room), ppfd)
 
 
+def _dimming_is_cheap(rf: RoomFile) -> bool:
+    from app.service.cost import NS_PER, estimate  # cost builds scenes through the same modules as advice
+
+    cost = estimate(rf.room)
+    # Wall-patch transfers depend on the geometry only and stay cached when a fixture is dimmed.
+    redo_s = cost.seconds - cost.units.get("patch_evaluations", 0.0) * NS_PER["patch_evaluations"] * 1e-9
+    return redo_s * RETRIES <= LIVE_DIMMING_BUDGET_S
+
+
 def zone_fixes(rf: RoomFile, base: dict[str, Any], case: ZoneCase, every_kind: bool = True, before_trial=None):
     """Verified fixes for one zone (at most one of each kind) and why the other kinds cannot help.
 
@@ -293,7 +305,7 @@ def zone_fixes(rf: RoomFile, base: dict[str, Any], case: ZoneCase, every_kind: b
         ("height", lambda: height_candidates(case, rf.room)),
     )
     # The live analysis tries the settings that need no new hanging position; check-my-setup tries all.
-    tried = kinds if every_kind else kinds[:LIVE_KINDS]
+    tried = kinds if every_kind else kinds[: LIVE_KINDS if _dimming_is_cheap(rf) else 1]
     for kind, make in tried if case.settings_fail else kinds[:1]:
         candidates, why = make()
         for fix in candidates[:RETRIES]:
