@@ -56,8 +56,9 @@ def _directions(emitter: Emitter, n: int, rng: np.random.Generator) -> np.ndarra
     if d.kind == "cosine_power":
         cos_t = (1.0 - xi) ** (1.0 / (d.exponent + 1.0))
     else:
-        # Tabulated: invert the polar CDF of the azimuth-averaged profile (fine enough for a budget).
-        theta = np.linspace(0, np.pi / 2, 2001)
+        # Tabulated: invert the polar CDF of the azimuth-averaged profile (fine enough for a budget), over
+        # the whole sphere: a table's upward light goes up, towards the ceiling.
+        theta = np.linspace(0, np.pi, 4001)
         prof = np.interp(theta, d.polar_rad, d.table_per_sr.mean(axis=0), right=0.0) * np.sin(theta)
         cdf = np.concatenate([[0], np.cumsum(0.5 * (prof[1:] + prof[:-1]) * np.diff(theta))])
         # The azimuthal structure of a table is not followed in the budget: φ stays uniform.

@@ -96,7 +96,7 @@ def irradiance_from_nodes(
         else:
             ipf = intensity_per_flux(dist, cos_t)
         if upward:
-            cos_r = cos_t
+            cos_r = np.maximum(cos_t, 0.0)  # a table's upward light never reaches a level, upward receiver
         else:
             nn = normal if normal.ndim == 1 else normal[a : a + step][None, :, :]
             nx, ny, nz = (nn[..., 0], nn[..., 1], nn[..., 2])

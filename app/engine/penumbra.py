@@ -118,7 +118,7 @@ def unit_irradiance(q, p, dist, rotation_deg: float, mirror=(1.0, 1.0)) -> np.nd
     r = np.sqrt(r2)
     cos_t = dz / r
     phi = np.arctan2(mirror[1] * dy, mirror[0] * dx) - np.radians(rotation_deg)
-    return intensity_per_flux(dist, cos_t, phi) * cos_t / r2
+    return intensity_per_flux(dist, cos_t, phi) * np.maximum(cos_t, 0.0) / r2
 
 
 @dataclass(frozen=True)
