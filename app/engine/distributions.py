@@ -127,9 +127,7 @@ def tabulated(polar_deg, azimuth_deg, relative_intensity, key: str = "") -> Dist
     )
 
 
-def zonal_flux(
-    polar_rad, azimuth_rad, table, n_theta: int = 720, n_phi: int = 360, upper_rad: float = np.pi
-) -> float:
+def zonal_flux(polar_rad, azimuth_rad, table, n_theta: int = 720, n_phi: int = 360, upper_rad: float = np.pi) -> float:
     """∫∫ I(θ, φ) sin θ dθ dφ of the bilinear interpolant over θ ≤ ``upper_rad``, by the midpoint rule.
 
     With one azimuth (rotational symmetry) this is the zonal method over fine
@@ -155,6 +153,14 @@ def downward_share(dist: Distribution) -> float:
     if dist.kind == "cosine_power":
         return 1.0
     return zonal_flux(dist.polar_rad, dist.azimuth_rad, dist.table_per_sr, upper_rad=np.pi / 2)
+
+
+def sends_upward(dist: Distribution) -> bool:
+    """Whether any light leaves above the emitter's horizon (θ > 90°): never for a cosⁿ beam."""
+    if dist.kind == "cosine_power":
+        return False
+    polar = dist.polar_rad
+    return bool(polar.max() > np.pi / 2 + 1e-12 and np.any(dist.table_per_sr[:, polar >= np.pi / 2 - 1e-12] > 0))
 
 
 def intensity_per_flux(dist: Distribution, cos_theta, phi=0.0):

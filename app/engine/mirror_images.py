@@ -2,7 +2,8 @@
 
 A room 0..W × 0..L with vertical mirror walls (reflective film, polished metal) unfolds into a lattice of
 mirrored rooms, and the image of a source in cell (i, j) carries the product of the reflectances of the walls
-crossed. Downward emitters never light the ceiling, so the lattice is exact for vertical walls. Images are
+crossed. The lattice mirrors the vertical walls only: light sent up to a mirror ceiling (a tilted fixture, a
+table's upward share) is not returned to the canopy maps (the photon budget follows it). Images are
 summed until their peak contribution falls below ``IMAGE_RELATIVE`` of the real source's peak; near images are
 computed on the fine grid with full emitter quadrature, far ones on a coarse grid, bilinearly interpolated.
 Each surface has its own finish (Enclosure.surface): only mirror surfaces make images.
@@ -57,6 +58,8 @@ def image_list(emitter: Emitter, grid: Grid, enc: Enclosure) -> list[tuple[int, 
         return []
     dz = emitter.z_m - grid.z_m
     n = emitter.distribution.exponent if emitter.distribution.kind == "cosine_power" else 1.0
+    if emitter.tilted:
+        n = 0.0  # bounded as an isotropic source at its largest intensity (app/engine/direct.py cull_radius_m)
     k = np.arange(-MAX_IMAGE_ORDER, MAX_IMAGE_ORDER + 1)
     wx, wy = _axis_weights(k, rl, rr), _axis_weights(k, rf, rb)
     ki, kj = k[wx > IMAGE_RELATIVE], k[wy > IMAGE_RELATIVE]
@@ -148,8 +151,10 @@ def specular_map(emitter: Emitter, grid: Grid, enc: Enclosure, boxes: tuple[Box,
             w * flux,
             emitter.distribution,
             emitter.rotation_deg,
-            mirror=mirror,
+            mirror=mirror,  # a mirrored image's aim is mirrored too: its rays are read in the real frame
             dtype=dtype,
+            tilt_deg=emitter.tilt_deg,
+            aim_deg=emitter.aim_deg,
         ).reshape(sgy.shape)
         if near_boxes:
             # The light the boxes (and their mirror copies) take away, on the same samples: an image's
@@ -204,7 +209,15 @@ def _far_images(emitter: Emitter, points: np.ndarray, far: dict, enc: Enclosure,
     for m, grp in groups:
         sl = slice(start, start + len(grp))
         start += len(grp)
-        k[sl] = unit_irradiance(nodes[sl, None, :], points[None, :, :], emitter.distribution, emitter.rotation_deg, m)
+        k[sl] = unit_irradiance(
+            nodes[sl, None, :],
+            points[None, :, :],
+            emitter.distribution,
+            emitter.rotation_deg,
+            m,
+            emitter.tilt_deg,
+            emitter.aim_deg,
+        )
     if not boxes:
         return ww @ k
     tested = np.maximum(np.abs(ii), np.abs(jj)) <= SHADOW_TEST_ORDER
