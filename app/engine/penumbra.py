@@ -114,18 +114,21 @@ def unit_irradiance(q, p, dist, rotation_deg: float, mirror=(1.0, 1.0), tilt_deg
     dx, dy = p[..., 0] - q[..., 0], p[..., 1] - q[..., 1]
     dz = q[..., 2] - p[..., 2]
     r2 = dx * dx + dy * dy + dz * dz
+    mz = mirror[2] if len(mirror) > 2 else 1.0  # -1: an image in a mirror ceiling, whose real ray went up
     if is_tilted(tilt_deg):
         r = np.sqrt(r2)
         frame = aim_matrix(rotation_deg, tilt_deg, aim_deg)
-        cos_own, phi = own_frame_angles(mirror[0] * dx, mirror[1] * dy, -dz, r, frame)
+        cos_own, phi = own_frame_angles(mirror[0] * dx, mirror[1] * dy, -mz * dz, r, frame)
         return intensity_per_flux(dist, cos_own, phi) * np.maximum(dz / r, 0.0) / r2
+    if dist.kind == "cosine_power" and mz < 0:
+        return np.zeros(np.broadcast_shapes(dx.shape, dz.shape))  # a level cosⁿ beam sends nothing up
     if dist.kind == "cosine_power":
         n = dist.exponent
         return (n + 1.0) / (2.0 * np.pi) * np.maximum(dz, 0.0) ** (n + 1.0) * r2 ** (-(n + 3.0) / 2.0)
     r = np.sqrt(r2)
     cos_t = dz / r
     phi = np.arctan2(mirror[1] * dy, mirror[0] * dx) - np.radians(rotation_deg)
-    return intensity_per_flux(dist, cos_t, phi) * np.maximum(cos_t, 0.0) / r2
+    return intensity_per_flux(dist, mz * cos_t, phi) * np.maximum(cos_t, 0.0) / r2
 
 
 @dataclass(frozen=True)
