@@ -49,3 +49,12 @@ def test_tilt_and_aim_reach_the_engine(tent_doc, tilt):
     assert e.tilt_deg == tilt
     # A level fixture's aim means nothing: the engine gets 0, so level fixtures share footprints.
     assert e.aim_deg == (270.0 if tilt else 0.0)
+
+
+def test_the_sheet_says_where_a_tilted_fixture_leans(tent_doc):
+    from app.service.sheet_data import fixtures_to_hang
+
+    tent_doc["room"]["fixtures"][0].update(tilt_deg=30, aim_deg=45)
+    rows = fixtures_to_hang(parse_room_file(json.dumps(tent_doc)).room)
+    assert rows[0]["rotation"].endswith(", tilted 30° toward 45°")
+    assert "tilted" not in rows[1]["rotation"]
