@@ -222,3 +222,53 @@ def test_upward_fixture_under_a_mirror_ceiling_is_its_image():
     assert np.all(zone.direct == 0.0)
     ref = rho * lambert_tilted(grid_points(g), np.array([1.2, 1.6, 2 * H - 1.5]), 0.0, 0.0)
     assert_allclose(zone.reflected, ref, rtol=0.02)  # measured 1.5 %: the images are bilinear on a 9 x 9 grid
+
+
+def _segment_hits_box(q, p, lo, hi):
+    """Slab test (Kay & Kajiya 1986) for segments q → p (broadcast (…, 3)) against one box, written here alone."""
+    d = p - q
+    with np.errstate(divide="ignore", invalid="ignore"):
+        t1, t2 = (lo - q) / d, (hi - q) / d
+    t1 = np.where(np.isnan(t1), -np.inf, t1)
+    t2 = np.where(np.isnan(t2), np.inf, t2)
+    tmin = np.max(np.minimum(t1, t2), axis=-1)
+    tmax = np.min(np.maximum(t1, t2), axis=-1)
+    return (tmax > tmin) & (tmax > 1e-9) & (tmin < 1 - 1e-9)
+
+
+@pytest.mark.parametrize("with_box", [False, True])
+def test_tilted_panel_with_and_without_a_shadow(with_box):
+    """A 0.6 × 0.4 m Lambertian panel turned 30° and tilted 60° toward aim 200°, 0.9 m over a canopy, with a box
+    beside its plumb point: the reference cuts the tilted face into 60 × 40 elements, each a Lambertian point of
+    Φ/2400 (inverse-square and cosine laws), hidden where the segment to the point crosses the box."""
+    from app.engine.aim import aim_matrix
+    from app.engine.scene import Box
+
+    c = np.array([2.0, 2.0, 0.9])
+    tilt, aim, rot = 60.0, 200.0, 30.0
+    box = Box(1.0, 1.5, 0.0, 1.3, 2.3, 0.5)
+    boxes = (box,) if with_box else ()
+    g = Grid("g", 0.0, 0.0, 4.0, 4.0, 0.0, 0.1)
+    e = Emitter("P", *c, PPF, lambertian(), "panel", 0.6, 0.4, rotation_deg=rot, tilt_deg=tilt, aim_deg=aim)
+    ppfd = compute_scene((e,), (g,), Enclosure(4.0, 4.0, 2.5), boxes)[0].ppfd
+    m = aim_matrix(rot, tilt, aim)
+    u = (np.arange(60) + 0.5) / 60 * 0.6 - 0.3
+    v = (np.arange(40) + 0.5) / 40 * 0.4 - 0.2
+    uu, vv = np.meshgrid(u, v, indexing="ij")
+    nodes = c + uu.reshape(-1, 1) * m[:, 0] + vv.reshape(-1, 1) * m[:, 1]
+    pts = grid_points(g).reshape(-1, 3)
+    ref = np.zeros(pts.shape[0])
+    lo, hi = np.array([box.x0_m, box.y0_m, box.z0_m]), np.array([box.x1_m, box.y1_m, box.z1_m])
+    for q in nodes:
+        k = lambert_tilted(pts, q, tilt, aim, PPF / nodes.shape[0])
+        if with_box:
+            k = np.where(_segment_hits_box(q[None, :], pts, lo, hi), 0.0, k)
+        ref += k
+    ref = ref.reshape(ppfd.shape)
+    if with_box:
+        assert ref.min() == 0.0 and np.any((ref > 0) & (ref < 0.5 * ref.max()))  # a shadow with a penumbra
+    # Elements of 1 cm against the engine's Gauss-Legendre cells: a penumbra's edge is where they differ most.
+    err = np.abs(ppfd - ref) / ref.max()
+    # Measured: 0.09 % of the peak at worst in open air, 0.66 % at the shadow's edge (RMS 0.01 % and 0.04 %).
+    assert err.max() < (0.01 if with_box else 2e-3), err.max()
+    assert np.sqrt(np.mean(err**2)) < (2e-3 if with_box else 5e-4)
