@@ -1,6 +1,7 @@
 """Planner and check-my-setup timings for ``python -m app.bench``: medians, cold (every cache cleared) and warm.
 
-Rooms: the four samples and a 1.5 × 3 m tent with matt white walls (reflectance 0.90). Candidate types: each
+Rooms: the four samples, a 1.5 × 3 m tent with matt white walls (reflectance 0.90) and the same tent in
+reflective film with a carbon filter (a 30 × 30 × 50 cm box) hung from its top bars. Candidate types: each
 room's own types plus two small library types that hang in every sample with the default 10 cm gaps (the
 samples' own fixtures hang 4 cm or less apart, so most of them alone cannot be re-hung with 10 cm gaps).
 """
@@ -11,33 +12,48 @@ import statistics
 import time
 
 from app.assets import asset_dir
-from app.room.models import WALL_FINISHES, RoomFile
+from app.room.models import WALL_FINISHES, Obstacle, RoomFile
 from app.room.roomfile import parse_room_file
 
 SAMPLES = ("hobby-tent-peppers", "basement-two-benches", "research-chamber-metric", "three-tier-greens-rack")
 EXTRA_TYPES = ("spot-90", "strip-0.6")
 
 
-def white_tent() -> RoomFile:
+def empty_tent(name: str, finish: str, obstacles=()) -> RoomFile:
+    """The sample tent's crop and types in a 1.5 × 3 m tent with the given finish and no fixtures."""
     rf = parse_room_file((asset_dir("sample_rooms") / "hobby-tent-peppers.json").read_bytes())
     r = rf.room
     zone = r.zones[0].model_copy(update={"width_m": 1.5, "length_m": 3.0})
     room = r.model_copy(
         update={
-            "name": "White tent 1.5 x 3 m",
+            "name": name,
             "width_m": 1.5,
             "length_m": 3.0,
-            "wall_finish": WALL_FINISHES["white_paint"],
+            "wall_finish": WALL_FINISHES[finish],
             "zones": [zone],
             "fixtures": [],
+            "obstacles": list(obstacles),
         }
     )
     return rf.model_copy(update={"room": room})
 
 
+def white_tent() -> RoomFile:
+    return empty_tent("White tent 1.5 x 3 m", "white_paint")
+
+
+def film_tent_with_filter() -> RoomFile:
+    height = 2.032  # the sample tent's own height: the filter hangs 10 cm under its top bars
+    carbon_filter = Obstacle(
+        id="filter", name="Carbon filter", x_m=0.6, y_m=1.35, z_m=height - 0.6, width_m=0.3, length_m=0.3, height_m=0.5
+    )
+    return empty_tent("Film tent 1.5 x 3 m with a carbon filter", "reflective_film", [carbon_filter])
+
+
 def rooms() -> dict[str, RoomFile]:
     out = {n: parse_room_file((asset_dir("sample_rooms") / f"{n}.json").read_bytes()) for n in SAMPLES}
     out["white tent 1.5 x 3 m"] = white_tent()
+    out["film tent 1.5 x 3 m + carbon filter"] = film_tent_with_filter()
     return out
 
 

@@ -117,13 +117,15 @@ def test_hot_spot_over_leafy_crop():
     assert z["ppfd"]["max"] > 700 and z["target"]["ppfd_stress"] == 700
     hot = [w for w in r["warnings"] if w["code"] == "hot_spot"][0]
     assert hot["fixture_id"] in {"F1", "F2"}
-    # Check-my-setup's fix is a checked, absolute setting for both fixtures over the zone
-    # (tests/service/test_advice.py); the live analysis offers only photoperiod fixes, none fits a hot spot.
-    assert hot["fixes"] == [] and "Check my setup" in hot["fix"]
+    # No photoperiod fits a hot spot, so the live analysis offers its one dimming: a checked, absolute setting
+    # for both fixtures over the zone (tests/service/test_advice.py), the same one check-my-setup finds.
+    (live,) = hot["fixes"]
+    assert live["action"] == "set_dimming" and live["text"] in hot["fix"]
+    assert set(live["fixtures"]) == {"F1", "F2"} and live["result"]["ppfd_max"] <= 700
     full = analyse(parse_room_file(to_json_bytes(doc)), with_fixes="all")
     hot = [w for w in full["warnings"] if w["code"] == "hot_spot"][0]
     dim = next(f for f in hot["fixes"] if f["action"] == "set_dimming")
-    assert set(dim["fixtures"]) == {"F1", "F2"} and dim["result"]["ppfd_max"] <= 700
+    assert dim["fixtures"] == live["fixtures"]
     assert z["hot"]["area_m2"] > 0 and z["hot"]["outline"]
 
 

@@ -157,7 +157,24 @@ def test_per_surface_finishes_round_trip_and_reach_the_engine(tent_doc):
 
 
 def test_unknown_surface_and_kind_are_named(tent_doc):
-    tent_doc["room"]["surface_finishes"] = {"floor": {"kind": "open"}, "left": {"kind": "glass"}}
+    tent_doc["room"]["surface_finishes"] = {"roof": {"kind": "open"}, "left": {"kind": "glass"}}
     fields = {f for f, _ in problems(tent_doc)}
-    assert any("surface_finishes" in f and "floor" in f for f in fields)
+    assert any("surface_finishes" in f and "roof" in f for f in fields)
     assert any("surface_finishes.left.kind" in f for f in fields)
+
+
+def test_a_floor_is_matt_or_absorbing_and_a_white_floor_adds_light(tent_doc):
+    from app.service.analysis import analyse
+
+    tent_doc["room"]["surface_finishes"] = {"floor": {"kind": "specular", "reflectance": 0.9}}
+    ((field, msg),) = problems(tent_doc)
+    assert field == "room.surface_finishes" and "floor" in msg and "specular" in msg
+    # Matt walls and a matt floor beside two benches: light the floor takes between the benches returns by
+    # way of walls and ceiling (in the tent the canopy covers the whole floor, so it would change nothing).
+    doc = sample_doc("basement-two-benches")
+    dark = analyse(parse_room_file(json.dumps(doc)))["zones"][0]["ppfd"]["avg"]
+    doc["room"]["surface_finishes"] = {"floor": {"kind": "diffuse", "reflectance": 0.8}}
+    rf = parse_room_file(json.dumps(doc))
+    assert rf.room.finish_of("floor").kind == "diffuse"
+    white = analyse(rf)["zones"][0]["ppfd"]["avg"]
+    assert white > dark * 1.001

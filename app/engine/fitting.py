@@ -32,6 +32,9 @@ SUSPICIOUS_MARGIN = 0.10
 # The one efficacy threshold Leafcast flags above: 10 % over the best measured fixtures (the margin is Leafcast's
 # own allowance for measurement spread, common practice, no source). The page and the README quote this value.
 SUSPICIOUS_ABOVE_UMOL_J = round(BEST_MEASURED_UMOL_J * (1 + SUSPICIOUS_MARGIN), 2)
+EXPONENT_RANGE = (0.3, 30.0)
+"""Beam exponents the fit tries: cos^0.3 is a 168° beam, cos^30 a 25° one (half-power angles)."""
+BOUND_SHARE = 0.02  # a fitted figure within this share of its range's edge stopped there
 
 
 def map_grid(shape: tuple[int, int], cell_m: float) -> Grid:
@@ -77,25 +80,39 @@ def fit_ppfd_map(readings, cell_m: float, height_m: float, max_side_m: float | N
         raise ValueError("cell size and hanging height must be > 0")
     span = max_side_m if max_side_m is not None else min(r.shape) * cell_m
 
-    def cost(log_n, side):
-        return _score(r, cell_m, height_m, float(np.exp(log_n)), min(max(side, 0.0), span))[0]
+    ln_lo, ln_hi = np.log(EXPONENT_RANGE)
 
-    grid = [(cost(ln, a), ln, a) for ln in np.log(np.geomspace(0.3, 30.0, 20)) for a in np.linspace(0.0, span, 13)]
+    def cost(log_n, side):
+        return _score(r, cell_m, height_m, float(np.exp(log_n)), side)[0]
+
+    grid = [(cost(ln, a), ln, a) for ln in np.linspace(ln_lo, ln_hi, 20) for a in np.linspace(0.0, span, 13)]
     best, ln, a = min(grid, key=lambda t: t[0])
     # Compass search: try the four neighbours, move on improvement, halve the steps when none improves.
     step_ln, step_a = 0.25, span / 12
     for _ in range(200):
         if step_ln < 1e-4 and step_a < 1e-5:
             break
-        moves = [(ln + step_ln, a), (ln - step_ln, a), (ln, a + step_a), (ln, max(a - step_a, 0.0))]
+        moves = [
+            (min(ln + step_ln, ln_hi), a),
+            (max(ln - step_ln, ln_lo), a),
+            (ln, min(a + step_a, span)),
+            (ln, max(a - step_a, 0.0)),
+        ]
         scored = min(((cost(cl, ca), cl, ca) for cl, ca in moves), key=lambda t: t[0])
         if scored[0] < best:
             best, ln, a = scored
         else:
             step_ln, step_a = step_ln / 2, step_a / 2
-    n, a = float(np.exp(ln)), min(max(a, 0.0), span)
+    n, a = float(np.exp(ln)), a
     rms, ppf, resid = _score(r, cell_m, height_m, n, a)
     half = np.degrees(np.arccos(0.5 ** (1 / n)))
+    at_bound = []
+    if ln - ln_lo < BOUND_SHARE * (ln_hi - ln_lo):
+        at_bound.append("widest_beam")
+    if ln_hi - ln < BOUND_SHARE * (ln_hi - ln_lo):
+        at_bound.append("narrowest_beam")
+    if span - a < BOUND_SHARE * span:
+        at_bound.append("largest_emitter")
     return {
         "ppf_umol_s": ppf,
         "exponent": float(n),
@@ -104,7 +121,31 @@ def fit_ppfd_map(readings, cell_m: float, height_m: float, max_side_m: float | N
         "rms_error": rms / float(r.mean()),
         "max_abs_error_umol_m2_s": float(np.abs(resid).max()),
         "residuals": np.round(resid, 2).tolist(),
+        "at_bound": at_bound,
     }
+
+
+def fit_findings(fit: dict, cell_m: float, shape: tuple[int, int]) -> list[dict]:
+    """Warnings when the fit stopped at the edge of what it tries: its figures are then not a fixture's."""
+    span = min(shape) * cell_m
+    words = {
+        "widest_beam": f"the beam came out as wide as the fit allows ({fit['beam_angle_deg']:.0f}°)",
+        "narrowest_beam": f"the beam came out as narrow as the fit allows ({fit['beam_angle_deg']:.0f}°)",
+        "largest_emitter": f"the emitter came out as large as the map ({fit['side_m']:.2f} m across a "
+        f"{span:.2f} m map)",
+    }
+    if not fit["at_bound"]:
+        return []
+    reasons = "; ".join(words[k] for k in fit["at_bound"])
+    return [
+        {
+            "level": "suspicious",
+            "code": "fit_at_bound",
+            "message": f"The fit is not a trustworthy fixture: {reasons}. The map may be measured with "
+            "reflectors, cropped, or not of one fixture in open air; check the fitted map against the readings "
+            "before using this type.",
+        }
+    ]
 
 
 def predict_at_heights(fit: dict, shape, cell_m: float, heights_m) -> list[dict]:

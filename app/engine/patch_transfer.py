@@ -10,6 +10,7 @@ import numpy as np
 
 from app.engine.cache import MIB, memoise
 from app.engine.direct import blocked
+from app.engine.formfactors import upward_element_to_axis_rectangles
 from app.engine.mirror_images import _boxes_between
 from app.engine.radiosity import Patches, wall_patches
 from app.engine.scene import Box, Enclosure, Grid
@@ -126,17 +127,11 @@ def _to_points(p: Patches, pts: np.ndarray) -> np.ndarray:
 
 
 def _pair_factors(p: np.ndarray, corners: np.ndarray) -> np.ndarray:
-    """Exact factors for matched pairs: upward elements p (K, 3) and rectangles corners (K, 4, 3)."""
+    """Exact factors for matched pairs: upward elements p (K, 3) and axis-aligned rectangles corners (K, 4, 3)."""
     out = np.empty(p.shape[0], dtype=np.float32)
-    step = 1 << 16  # pairs per pass: bounds temporary memory
+    step = 1 << 18  # pairs per pass: bounds temporary memory
     for a in range(0, p.shape[0], step):
-        r = corners[a : a + step] - p[a : a + step, None, :]
-        r /= np.maximum(np.linalg.norm(r, axis=-1, keepdims=True), 1e-12)
-        r_next = np.roll(r, -1, axis=1)
-        cross = np.cross(r, r_next)
-        sin = np.linalg.norm(cross, axis=-1)
-        gamma = np.arctan2(sin, np.clip(np.sum(r * r_next, axis=-1), -1.0, 1.0))
-        out[a : a + step] = np.abs(np.sum(gamma * cross[..., 2] / np.maximum(sin, 1e-15), axis=-1)) / (2 * np.pi)
+        out[a : a + step] = upward_element_to_axis_rectangles(p[a : a + step], corners[a : a + step])
     return out
 
 

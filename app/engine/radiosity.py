@@ -18,7 +18,7 @@ from app.engine.cache import MIB, memoise
 from app.engine.direct import blocked, irradiance_from_nodes
 from app.engine.distributions import sends_upward
 from app.engine.emitters import world_nodes
-from app.engine.formfactors import element_to_polygon
+from app.engine.formfactors import axis_element_to_axis_rectangles
 from app.engine.mirror_images import IMAGE_RELATIVE, _axis_weights, _mirror_nodes
 from app.engine.scene import Box, Emitter, Enclosure
 
@@ -113,7 +113,9 @@ def radiosity_operator(enc: Enclosure, blockers: tuple[Box, ...] = (), cuts_m: t
     p = wall_patches(enc, cuts_m)
     # Exact element-to-rectangle factors from each patch centre (app/engine/formfactors.py): adjacent
     # patches meet at right angles along room edges, where point-to-point estimates are worst.
-    F = element_to_polygon(p.centres, p.normals, p.corners)
+    # Every patch lies along the room's axes, so the closed forms of app/engine/formfactors.py give the same
+    # factors as the general contour formula at a quarter of its cost.
+    F = axis_element_to_axis_rectangles(p.centres, p.normals, p.corners)
     if blockers:
         inset = p.centres + 1e-6 * p.normals
         F = np.where(blocked(inset, inset, blockers), 0.0, F)

@@ -13,7 +13,7 @@ from __future__ import annotations
 
 from typing import Annotated, Literal
 
-from pydantic import Field, model_validator
+from pydantic import Field, field_validator, model_validator
 
 from app.room import limits
 from app.room.meter_models import (  # noqa: F401 (re-exported: the room model's names stay here)
@@ -60,8 +60,9 @@ class WallFinish(Strict):
     label: str = Field(default="", max_length=80)
 
 
-Surface = Literal["front", "back", "left", "right", "ceiling"]
+Surface = Literal["front", "back", "left", "right", "ceiling", "floor"]
 SURFACES: tuple[str, ...] = ("left", "right", "front", "back", "ceiling")
+"""The walls and the ceiling. The floor may be listed too (matt or absorbing only); unlisted it absorbs."""
 
 
 class SurfaceFinish(Strict):
@@ -278,6 +279,30 @@ class Entry(Strict):
     label: str = Field(default="Entry", min_length=1, max_length=40)
 
 
+class HangingGrid(Strict):
+    """Rails or hook points the fixtures must hang from: fixture centres sit on lines ``origin + k × pitch``.
+
+    A pitch along one axis only is a set of rails (free along the other axis); pitches along both are a
+    grid of hook points. Added in 0.2; a file without it hangs fixtures anywhere, as in 0.1.
+    """
+
+    origin_x_m: Metres = Field(description="A rail or hook line's distance from the left wall [m].")
+    origin_y_m: Metres = Field(description="A rail or hook line's distance from the front wall [m].")
+    pitch_x_m: float | None = Field(
+        default=None, gt=0, le=limits.MAX_ROOM_SIDE_M, description="Spacing of the lines along x; none: free along x."
+    )
+    pitch_y_m: float | None = Field(
+        default=None, gt=0, le=limits.MAX_ROOM_SIDE_M, description="Spacing of the lines along y; none: free along y."
+    )
+    label: str = Field(default="", max_length=80, description="What the grid is, for the sheet (e.g. ceiling rails).")
+
+    @model_validator(mode="after")
+    def _some_pitch(self) -> HangingGrid:
+        if self.pitch_x_m is None and self.pitch_y_m is None:
+            raise ValueError("a hanging grid needs pitch_x_m or pitch_y_m (or both); leave hanging_grid out for none")
+        return self
+
+
 class Room(Strict):
     name: Label
     width_m: PositiveMetres = Field(description="Along x (left to right on the plan).")
@@ -287,8 +312,9 @@ class Room(Strict):
     open_sides: list[Side] = Field(default_factory=list, max_length=4)
     surface_finishes: dict[Surface, SurfaceFinish] = Field(
         default_factory=dict,
-        description="Per-surface finishes (left, right, front, back, ceiling); a surface not listed takes "
-        "wall_finish, or is open when it is in open_sides. Added in 0.2; 0.1 files keep their meaning.",
+        description="Per-surface finishes (left, right, front, back, ceiling, and optionally floor: diffuse or "
+        "absorbing); a wall or ceiling not listed takes wall_finish, or is open when it is in open_sides; the "
+        "floor absorbs unless listed. Added in 0.2; 0.1 files keep their meaning.",
     )
     zones: list[CanopyZone] = Field(min_length=1, max_length=limits.MAX_ZONES)
     fixture_types: list[FixtureType] = Field(default_factory=list, max_length=limits.MAX_FIXTURE_TYPES)
@@ -312,11 +338,27 @@ class Room(Strict):
     output_age: OutputAge = Field(default_factory=OutputAge)
     readings: list[ReadingSet] = Field(default_factory=list, max_length=limits.MAX_READING_SETS)
     payback: PaybackPlan | None = None
+    hanging_grid: HangingGrid | None = Field(
+        default=None, description="Rails or hook points fixture centres must sit on; none: fixtures hang anywhere."
+    )
+
+    @field_validator("surface_finishes")
+    @classmethod
+    def _floor_is_matt_or_dark(cls, v: dict[str, SurfaceFinish]) -> dict[str, SurfaceFinish]:
+        floor = v.get("floor")
+        if floor is not None and floor.kind not in ("diffuse", "absorbing"):
+            raise ValueError(
+                f"the floor can be diffuse (matt, e.g. white ground cover) or absorbing, not {floor.kind}"
+            )
+        return v
 
     def finish_of(self, surface: str) -> SurfaceFinish:
-        """The finish a surface has: its own entry, else open (a listed open side) or the room's wall_finish."""
+        """The finish a surface has: its own entry, else open (a listed open side) or the room's wall_finish;
+        an unlisted floor absorbs."""
         if surface in self.surface_finishes:
             return self.surface_finishes[surface]
+        if surface == "floor":
+            return SurfaceFinish(kind="absorbing", label="Floor")
         if surface in self.open_sides:
             return SurfaceFinish(kind="open", label="Open")
         wf = self.wall_finish

@@ -268,6 +268,23 @@ def _entry_problems(room: Room) -> list[Problem]:
     return out
 
 
+def _hanging_grid_problems(room: Room) -> list[Problem]:
+    """The hanging grid's origin must lie inside the room."""
+    g = room.hanging_grid
+    if g is None:
+        return []
+    out = []
+    for name, value, side, wall in (
+        ("origin_x_m", g.origin_x_m, "width", room.width_m),
+        ("origin_y_m", g.origin_y_m, "length", room.length_m),
+    ):
+        if value > wall + _EDGE_TOLERANCE_M:
+            out.append(
+                Problem(f"room.hanging_grid.{name}", f"{value:g} m is outside the room (its {side} is {wall:g} m)")
+            )
+    return out
+
+
 def consistency_problems(room_file: RoomFile) -> list[Problem]:
     """Checks that need the whole room. Returns every problem found."""
     room = room_file.room
@@ -283,6 +300,7 @@ def consistency_problems(room_file: RoomFile) -> list[Problem]:
     if len(set(room.open_sides)) != len(room.open_sides):
         p.append(Problem("room.open_sides", "each side may be listed once"))
     p += _entry_problems(room)
+    p += _hanging_grid_problems(room)
 
     W, L, H = room.width_m, room.length_m, room.height_m
     tol = _EDGE_TOLERANCE_M

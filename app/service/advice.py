@@ -33,7 +33,7 @@ HOUR_STEP_H = 0.25  # timers are set in quarter hours
 MIN_FIX_CLEARANCE_M = 0.10  # least height above the canopy a re-hang fix proposes (common practice, no source)
 HEIGHT_STEPS = 8
 MIN_DIMMING_PCT = 10
-LIVE_KINDS = 1  # the live analysis offers a photoperiod fix; check-my-setup every kind (memory, speed)
+LIVE_KINDS = 2  # the live analysis offers a photoperiod or one dimming (no new geometry); check-my-setup every kind
 RETRIES = 3  # candidates tried, nearest first, before a kind of fix is given up
 SERIOUS = ("warning", "error")
 
@@ -281,7 +281,7 @@ def zone_case(rf: RoomFile, base: dict[str, Any], index: int, ppfd: np.ndarray, 
                     stage.ppfd_stress_umol_m2_s, longest, area, dark_allowance(room), ppfd)
 
 
-def zone_fixes(rf: RoomFile, base: dict[str, Any], case: ZoneCase, every_kind: bool = True):
+def zone_fixes(rf: RoomFile, base: dict[str, Any], case: ZoneCase, every_kind: bool = True, before_trial=None):
     """Verified fixes for one zone (at most one of each kind) and why the other kinds cannot help.
 
     Kinds are tried cheapest first (photoperiod, dimming, height); unless ``every_kind``, the first that works
@@ -298,6 +298,8 @@ def zone_fixes(rf: RoomFile, base: dict[str, Any], case: ZoneCase, every_kind: b
     for kind, make in tried if case.settings_fail else kinds[:1]:
         candidates, why = make()
         for fix in candidates[:RETRIES]:
+            if before_trial is not None:
+                before_trial()
             fig = verify(rf, base, fix, case.zone.id)
             if fig is not None:
                 fixes.append({**fix, "kind": kind, "verified": True, "result": fig,
@@ -313,7 +315,7 @@ def zone_fixes(rf: RoomFile, base: dict[str, Any], case: ZoneCase, every_kind: b
 
 
 def attach_fixes(rf: RoomFile, result: dict[str, Any], grids: list[np.ndarray], areas: list[np.ndarray],
-                 every_kind: bool = False) -> None:
+                 every_kind: bool = False, before_trial=None) -> None:
     """Give each zone warning its verified fixes (``fixes``) and a sentence (``fix``) that says what to do."""
     allowance = result["verdict"]["dark_allowance"]
     for i, z in enumerate(result["zones"]):
@@ -323,7 +325,7 @@ def attach_fixes(rf: RoomFile, result: dict[str, Any], grids: list[np.ndarray], 
             continue
         case = zone_case(rf, result, i, grids[i], areas[i])
         case.settings_fail = failing
-        fixes, why_not = zone_fixes(rf, result, case, every_kind)
+        fixes, why_not = zone_fixes(rf, result, case, every_kind, before_trial)
         z["fixes"] = fixes
         z["no_fix_because"] = why_not
         for w in result["warnings"]:

@@ -94,12 +94,14 @@ def analyse(
     regions: tuple[Region, ...] = (),
     include_grids: bool = True,
     with_fixes: bool | str = True,
+    before_trial=None,
 ) -> dict[str, Any]:
     """The whole analysis of a room: per-zone maps and figures, energy, circuits, warnings.
 
     With ``with_fixes`` each zone that misses its target gets a fix checked by analysing the changed room
     again (:mod:`app.service.advice`): the first kind that works, or one of each kind with ``"all"``. The
-    verdict is :mod:`app.service.verdict`'s, with the room's allowance.
+    verdict is :mod:`app.service.verdict`'s, with the room's allowance. ``before_trial`` (no arguments) is
+    called before each fix is checked: check-my-setup's Cancel raises from it.
     """
     t0 = time.perf_counter()
     room = room_file.room
@@ -166,6 +168,7 @@ def analyse(
             [zl.ppfd.astype(float) for zl in lights],
             [zl.grid.cell_area_m2 for zl in lights],
             every_kind=with_fixes == "all",
+            before_trial=before_trial,
         )
     result["elapsed_ms"] = (time.perf_counter() - t0) * 1000
     return result

@@ -10,6 +10,8 @@ from typing import Any
 
 from app.room import layout
 from app.room.models import CanopyZone, Crop, Room
+from app.room.units import format_length
+from app.service.hanging import snap_m
 
 DEFAULT_MIN_DARK_H = 4.0  # common practice, no source (4-6 h for most crops)
 SHORT_DAY_NIGHT_H = 12.0  # Purdue HO-253 (Currey, Lopez & Runkle): at least 12 h uninterrupted dark
@@ -119,6 +121,8 @@ def room_warnings(room: Room, basis: dict[str, Any]) -> list[dict[str, Any]]:
                 )
             )
 
+    warnings += off_grid_warnings(room)
+
     for b in basis["types"]:
         if b["beyond_limit"]:
             warnings.append(
@@ -133,3 +137,31 @@ def room_warnings(room: Room, basis: dict[str, Any]) -> list[dict[str, Any]]:
             )
 
     return warnings
+
+
+OFF_GRID_M = 0.005  # a centre farther than this from its nearest grid line is off the grid
+
+
+def off_grid_warnings(room: Room) -> list[dict[str, Any]]:
+    """Fixtures whose centre is not on the room's hanging grid, with the nearest place on it."""
+    g = room.hanging_grid
+    if g is None:
+        return []
+    out, u = [], room.display_units
+    for f in room.fixtures:
+        x = snap_m(f.x_m, g.origin_x_m, g.pitch_x_m, 0.0, room.width_m)
+        y = snap_m(f.y_m, g.origin_y_m, g.pitch_y_m, 0.0, room.length_m)
+        if x is None or y is None or max(abs(x - f.x_m), abs(y - f.y_m)) <= OFF_GRID_M:
+            continue
+        out.append(
+            warn(
+                "fixture_off_grid",
+                "info",
+                f"Fixture {f.id} hangs off the hanging grid.",
+                f"Hang it {format_length(x, u, fine=True)} from the left wall and {format_length(y, u, fine=True)} "
+                "from the front wall (the nearest place on the grid), or add a hanger where it is.",
+                fixture=f.id,
+                where=[f.x_m, f.y_m, f.x_m, f.y_m],
+            )
+        )
+    return out

@@ -430,3 +430,24 @@ def fixture_type_from(
         "notes": ph.notes,
     }
     return ftype, report
+
+
+DECLARED_FLUX_TOLERANCE = 0.05
+"""Share by which a file's declared flux may differ from its table's zonal integral before Leafcast says so
+(rounding of the table and coarse angle steps stay well inside it; common practice, no source)."""
+
+
+def flux_findings(report: dict) -> list[dict]:
+    """A finding when the flux a file declares disagrees with the integral of its own candela table."""
+    ratio = report.get("zonal_over_declared")
+    if ratio is None or abs(ratio - 1.0) <= DECLARED_FLUX_TOLERANCE:
+        return []
+    return [
+        {
+            "level": "suspicious",
+            "code": "declared_flux_disagrees",
+            "message": f"The file declares {report['declared_flux']:,.0f} but its candela table integrates (zonal "
+            f"method) to {report['zonal_flux']:,.0f}, {ratio:.0%} of it. Leafcast uses the table's own integral "
+            "(what reaches the canopy follows the table); check the file's lamp count, multiplier and units.",
+        }
+    ]

@@ -2,18 +2,23 @@
 
 The analysis computes on unrounded numpy arrays; only the grids handed to the browser are rounded (PPFD to
 0.1 µmol m⁻² s⁻¹, DLI to 0.01 mol m⁻² d⁻¹), at this display edge. Extra keys are allowed so a service can add a
-figure before its model here names it; every figure a page reads should be named here.
+figure before its model here names it; every figure a page reads should be named here. Written as JSON, a
+non-finite float (an undefined figure, such as lumens per µmol of a spectrum with no visible light) becomes null.
+The planner's answers are in :mod:`app.service.results_planner`, the meter page's in
+:mod:`app.service.results_meter`, the photometry and library checks' in :mod:`app.service.results_library` and
+the year page's in :mod:`app.service.results_year`.
 """
 
 from __future__ import annotations
 
-from typing import Any
-
 from pydantic import BaseModel, ConfigDict, Field
+
+from app.room.models import Fixture, FixtureType
 
 
 class Result(BaseModel):
-    model_config = ConfigDict(extra="allow")
+    # ser_json_inf_nan="null" is pydantic's default, stated here because the API relies on it (app.web.json_edge).
+    model_config = ConfigDict(extra="allow", ser_json_inf_nan="null")
 
 
 class AreaStats(Result):
@@ -43,12 +48,64 @@ class AreaShare(Result):
     outline: list[list[float]] = Field(description="Closed polylines [x0, y0, x1, y1, ...] around the area [m]")
 
 
+class Allowance(Result):
+    dark_allowance: float = Field(description="Share of a zone's area allowed below the DLI band, 0-1")
+    is_default: bool
+    source: str
+
+
+class RoomVerdict(Allowance):
+    meets_target: bool = Field(description="Every zone meets its target and every circuit is within its limit")
+
+
+class ZoneVerdict(Result):
+    meets_target: bool
+    reasons: list[str] = Field(description="dark, hot and/or over")
+    dark_allowance: float
+
+
 class ZoneGrid(Result):
     x_m: list[float]
     y_m: list[float]
     spacing_m: float
     ppfd: list[list[float]] = Field(description="Rows front to back, rounded to 0.1 µmol m⁻² s⁻¹ for display")
     dli: list[list[float]] = Field(description="Rows front to back, rounded to 0.01 mol m⁻² d⁻¹ for display")
+
+
+class FixFigures(Result):
+    """What the whole room's analysis gave with the fix applied (it is offered only when the zone then passes)."""
+
+    zone_id: str
+    ppfd_avg: float
+    ppfd_max: float
+    ppfd_stress: float
+    dli_avg: float
+    dli_band: list[float] = Field(description="Bottom and top of the crop's DLI band [mol m⁻² d⁻¹]")
+    dark_share: float
+    photoperiod_h: float
+    power_w: float
+    power_change_w: float
+
+
+class VerifiedFix(Result):
+    """A structured, machine-applicable change with absolute settings (app.service.advice.apply_fix)."""
+
+    action: str = Field(description="set_photoperiod, set_dimming, set_height or add_fixtures")
+    kind: str = Field(description="photoperiod, dimming, height or layout")
+    verified: bool
+    result: FixFigures
+    text: str = Field(description="The change in words with the figures the re-analysis gave")
+    zone: str | None = Field(default=None, description="The zone (set_photoperiod, add_fixtures)")
+    hours: float | None = Field(default=None, description="The new photoperiod [h] (set_photoperiod)")
+    fixtures: dict[str, float] | list[Fixture] | None = Field(
+        default=None,
+        description="Fixture id -> dimming [%] or hanging height [m]; the new fixtures for add_fixtures",
+    )
+    remove: list[str] | None = Field(default=None, description="Fixture ids taken away (add_fixtures)")
+    fixture_types: list[FixtureType] | None = Field(default=None, description="Library types the room gains")
+    summary: str | None = None
+    count: int | None = Field(default=None, description="Fixtures of the new layout (add_fixtures)")
+    change_in_count: int | None = None
 
 
 class ZoneResult(Result):
@@ -73,6 +130,9 @@ class ZoneResult(Result):
     reflected_share: float
     area_m2: float
     grid: ZoneGrid | None = None
+    verdict: ZoneVerdict
+    fixes: list[VerifiedFix] | None = Field(default=None, description="Verified changes that make it meet its target")
+    no_fix_because: list[str] | None = Field(default=None, description="Why each other kind of change cannot help")
 
 
 class FixtureResult(Result):
@@ -122,7 +182,8 @@ class WarningResult(Result):
     code: str
     severity: str = Field(description="info, warning or error")
     message: str
-    fix: Any = Field(description="What would solve it: text, or a structured, verified change")
+    fix: str = Field(description="What would solve it, in words (with the first verified change when there is one)")
+    fixes: list[VerifiedFix] | None = Field(default=None, description="The verified changes behind ``fix``")
     zone_id: str | None = None
     fixture_id: str | None = None
     where: list[float] | None = Field(default=None, description="x0, y0, x1, y1 of the place on the plan [m]")
@@ -195,35 +256,12 @@ class Analysis(Result):
     emitted_umol_s: float
     regions: list[RegionResult]
     warnings: list[WarningResult]
+    verdict: RoomVerdict
     cautions: list[str]
     compute_ms: float = Field(description="Engine time [ms]")
     elapsed_ms: float = Field(description="Whole analysis, engine included [ms]")
     budget: Budget | None = None
     output_basis: OutputBasis | None = Field(default=None, description="At which age the output is shown")
-
-
-class JobStarted(Result):
-    job_id: str
-    revision: int = Field(description="Revision of the room the job started from (Apply saves against it)")
-    queue_position: int | None = None
-
-
-class PlannerJob(Result):
-    """A background planner or check-my-setup job: progress, the best found so far, the final result."""
-
-    id: str
-    kind: str = Field(description="'plan' or 'check'")
-    room_id: str
-    revision: int
-    progress: float = Field(description="Share of the search done, 0-1")
-    zone: str | None = None
-    found: int | None = None
-    best_so_far: Any = None
-    done: bool
-    cancelled: bool
-    error: str | None = None
-    result: Any = None
-    queue_position: int | None = Field(default=None, description="Place in the queue while waiting to start")
 
 
 class SpectrumFigures(Result):
@@ -235,9 +273,9 @@ class SpectrumFigures(Result):
     far_red_700_750: float
     ceiling_umol_j: float = Field(description="PPF per watt of a perfectly efficient source of this spectrum")
     ceiling_400_750_umol_j: float
-    umol_per_lumen: float
-    ppfd_per_klux: float
-    lux_per_ppfd: float = Field(description="Lux per µmol m⁻² s⁻¹ (Thimijan & Heins 1983 method)")
+    umol_per_lumen: float | None = Field(description="None (undefined) for a spectrum with no visible light")
+    ppfd_per_klux: float | None
+    lux_per_ppfd: float | None = Field(description="Lux per µmol m⁻² s⁻¹ (Thimijan & Heins 1983 method)")
 
 
 class MapFit(Result):
@@ -248,9 +286,32 @@ class MapFit(Result):
     rms_error: float = Field(description="RMS residual relative to the map's mean")
     max_abs_error_umol_m2_s: float
     residuals: list[list[float]]
+    at_bound: list[str] = Field(
+        default_factory=list,
+        description="Fitted figures that stopped at the edge of what the fit tries (widest_beam, narrowest_beam, "
+        "largest_emitter): the fit is then not a trustworthy fixture",
+    )
+
+
+class Finding(Result):
+    """A plausibility finding on a fixture's figures or a published map."""
+
+    level: str = Field(description="info, suspicious or impossible")
+    code: str
+    message: str
+
+
+class MapPrediction(Result):
+    """The fitted fixture's map at another hanging height [µmol m⁻² s⁻¹]."""
+
+    height_m: float
+    avg: float
+    max: float
+    centre: float
+    map: list[list[float]]
 
 
 class MapFitResult(Result):
     fit: MapFit
-    predictions: list[dict[str, Any]]
-    findings: list[dict[str, Any]]
+    predictions: list[MapPrediction]
+    findings: list[Finding]

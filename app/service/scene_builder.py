@@ -112,8 +112,9 @@ def build_scene(room: Room, dimming_pct: float | None = None) -> EngineScene:
     grids = tuple(zone_grid(z, room.grid_spacing_m) for z in room.zones)
     wf = room.wall_finish
     # Per-surface finishes only when the room has any: a 0.1 room keeps its one-finish enclosure.
+    listed = (*SURFACES, "floor") if "floor" in room.surface_finishes else SURFACES
     surfaces = tuple(
-        (s, room.finish_of(s).kind, room.finish_of(s).reflectance) for s in SURFACES if room.surface_finishes
+        (s, room.finish_of(s).kind, room.finish_of(s).reflectance) for s in listed if room.surface_finishes
     )
     enclosure = Enclosure(
         room.width_m, room.length_m, room.height_m, wf.kind, wf.reflectance, frozenset(room.open_sides), surfaces

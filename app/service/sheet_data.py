@@ -10,7 +10,7 @@ import re
 from typing import Any
 
 from app.engine import electrical as elec
-from app.room.models import Room
+from app.room.models import SURFACES, Room
 from app.room.units import fmt_current, fmt_number, format_area, format_length, format_weight
 from app.service.sheet_geometry import hanging_points_local, lit_zone, tiers
 from app.service.sheet_maps import hatch_key_svg, heatmap_svg, legend_svg, shared_scale
@@ -27,6 +27,27 @@ DEFINITIONS = (
     "canopy, from the floor. Rotation 0° means the fixture's length runs left to right (along the front wall); "
     "angles turn counter-clockwise seen from above. Positions are to the fixture's centre."
 )
+
+
+def _finish_words(kind: str, reflectance: float, label: str) -> str:
+    if kind == "open":
+        return "open"
+    if kind == "absorbing":
+        return f"{label} (absorbing)" if label and label.lower() != "absorbing" else "absorbing"
+    return f"{label} ({kind}, {reflectance:g})" if label else f"{kind}, {reflectance:g}"
+
+
+def walls_text(room: Room) -> str:
+    """The walls and ceiling as the sheet states them: one finish for all, or each surface's own (grouped)."""
+    if not room.surface_finishes:
+        wf = room.wall_finish
+        words = f"{wf.label or wf.kind} ({wf.kind}, {wf.reflectance:g})"
+        return words + (f"; open: {', '.join(room.open_sides)}" if room.open_sides else "")
+    groups: dict[str, list[str]] = {}
+    for s in (*SURFACES, "floor") if "floor" in room.surface_finishes else SURFACES:
+        f = room.finish_of(s)
+        groups.setdefault(_finish_words(f.kind, f.reflectance, f.label), []).append(s)
+    return "; ".join(f"{', '.join(names)}: {words}" for words, names in groups.items())
 
 
 def _circuit_order(room: Room) -> list[str]:

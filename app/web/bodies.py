@@ -70,7 +70,7 @@ class PlanIn(ApiIn):
     target: str = Field(default="bottom", pattern="^(bottom|middle)$", description="Dim to the band's bottom or middle")
     max_power_w: float | None = Field(default=None, gt=0, le=1e7, description="Power budget for the whole room [W]")
     min_clearance_m: float = Field(default=0.15, ge=0.02, le=3, description="Least height above the canopy [m]")
-    min_gap_m: float = Field(default=0.10, ge=0, le=1, description="Least gap between fixtures and to closed walls [m]")
+    min_gap_m: float = Field(default=0.10, ge=0, le=1, description="Least gap between fixtures and to closed sides (walls; on a rack, the tier's closed shelf edges) [m]")
     years: float = Field(default=3.0, gt=0, le=30, description="Horizon of the cost objective [years]")
     seed: int = Field(default=0, ge=0, le=2**31)
 

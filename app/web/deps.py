@@ -5,7 +5,6 @@ from __future__ import annotations
 from typing import Any
 
 from fastapi import Request
-from fastapi.responses import JSONResponse
 from fastapi.templating import Jinja2Templates
 
 from app.engine.compute import SceneError
@@ -16,6 +15,7 @@ from app.service.analysis import analyse
 from app.service.cost import OverBudget
 from app.service.guarded import AnalysisMemory, AnalysisRunner, AnalysisTimeout
 from app.web.errors import ApiError, not_found, room_error
+from app.web.json_edge import FiniteJSONResponse
 
 
 def store_of(request: Request) -> RoomStore:
@@ -72,5 +72,5 @@ def analysed(room_file: RoomFile, *, request: Request | None = None, abandon=Non
 def render(request: Request, template: str, data: dict[str, Any], fmt: str | None):
     """One data structure per page: rendered by its template, or returned as JSON with ``?format=json``."""
     if fmt == "json":
-        return JSONResponse(data)
+        return FiniteJSONResponse(data)
     return templates_of(request).TemplateResponse(request, template, {"page": data})

@@ -4,12 +4,12 @@ from __future__ import annotations
 
 from fastapi import FastAPI, Request
 from fastapi.exceptions import RequestValidationError
-from fastapi.responses import JSONResponse
 from pydantic import BaseModel, Field
 from starlette.exceptions import HTTPException as StarletteHTTPException
 
 from app.room.roomfile import Problem, RoomFileError
 from app.room.storage import StorageFull
+from app.web.json_edge import FiniteJSONResponse
 
 
 class ProblemOut(BaseModel):
@@ -45,13 +45,13 @@ class ApiError(Exception):
 
 def error_json(
     status: int, error: str, message: str, problems=(), current_revision=None, estimate=None
-) -> JSONResponse:
+) -> FiniteJSONResponse:
     body = {"error": error, "message": message, "problems": [p.as_dict() for p in problems]}
     if current_revision is not None:
         body["current_revision"] = current_revision
     if estimate is not None:
         body["estimate"] = estimate
-    return JSONResponse(body, status_code=status)
+    return FiniteJSONResponse(body, status_code=status)
 
 
 def room_error(exc: RoomFileError) -> ApiError:

@@ -15,6 +15,7 @@ from app.room.storage import RoomStore
 from app.room.units import format_length
 from app.service import sheet_data
 from app.service.colours import colour_scale
+from app.service.hanging import grid_words
 from app.service.meter import sheet_summary as meter_sheet_summary
 from app.service.verdict import allowance_info
 
@@ -78,10 +79,10 @@ def sheet(room_id: str, room_file: RoomFile, analysis: dict[str, Any], paper: st
             "name": room.name,
             "size": f"{format_length(room.width_m, u)} × {format_length(room.length_m, u)}, ceiling "
             f"{format_length(room.height_m, u)}",
-            "walls": f"{room.wall_finish.label or room.wall_finish.kind} ({room.wall_finish.kind}, "
-            f"{room.wall_finish.reflectance:g})" + (f"; open: {', '.join(room.open_sides)}" if room.open_sides else ""),
+            "walls": sheet_data.walls_text(room),
             "entry": f"{room.entry.label}, {room.entry.side} wall",
             "voltage": f"{room.schedule.supply_voltage_v:g} V",
+            "hanging_grid": grid_words(room, u),
         },
         "definitions": sheet_data.DEFINITIONS,
         "tier_layout": layout,

@@ -210,3 +210,16 @@ def test_low_wall_beside_the_zone_matches_brute_force_point_shadow():
     shaded = ref == 0.0
     assert 0.05 < shaded.mean() < 0.6  # the scene does put part of the zone in shade
     assert_allclose(got, ref, rtol=1e-6, atol=1e-9)
+
+
+@pytest.mark.parametrize("height_m", [2.0, 3.5, 5.0, 8.0])
+def test_a_far_panel_stays_within_0_2_percent_of_howell(height_m):
+    """A 0.6 m Lambertian panel hung high (where the engine may treat it as a point): E = M · F with F by
+    superposition of Howell B-3 corner rectangles. A point beyond five diagonals was 0.5 % high at 5 m."""
+    a, ppf = 0.6, 1000.0
+    g = Grid("g", -0.5, -0.5, 1.0, 1.0, 0.0, 0.5)
+    out = np.zeros((g.ny, g.nx))
+    direct_patch(Emitter("e", 0.0, 0.0, height_m, ppf, lambertian(), "panel", a, a), g, dtype=np.float64).add_into(out)
+    xs = g.x0_m + np.arange(g.nx) * g.spacing_m
+    ref = np.array([[rect_factor(-a / 2 - x, a / 2 - x, -a / 2 - y, a / 2 - y, height_m) for x in xs] for y in xs])
+    assert_allclose(out, ref * ppf / a**2, rtol=2e-3)

@@ -4,7 +4,7 @@ import numpy as np
 import pytest
 from numpy.testing import assert_allclose
 
-from app.engine.fitting import PAR_CEILING_UMOL_J, fit_ppfd_map, plausibility, predict_at_heights
+from app.engine.fitting import PAR_CEILING_UMOL_J, fit_findings, fit_ppfd_map, plausibility, predict_at_heights
 from tests.engine.test_direct import rect_factor
 
 
@@ -28,6 +28,21 @@ def test_fit_recovers_a_lambertian_panel_from_its_closed_form_map(side, ppf, h):
     assert fit["rms_error"] < 0.02
     assert_allclose(fit["ppf_umol_s"], ppf, rtol=0.03)
     assert_allclose(fit["exponent"], 1.0, atol=0.15)  # Lambertian: cos^1
+    assert fit["at_bound"] == [] and fit_findings(fit, 0.1, (11, 11)) == []
+
+
+def test_a_map_no_single_fixture_makes_is_flagged_not_fitted_silently():
+    """A flat map (the same PPFD in every cell, as from a wall of fixtures or a reflective box) is no one
+    fixture in open air: the fit runs to its widest beam and largest emitter and says so."""
+    fit = fit_ppfd_map(np.full((9, 9), 500.0), 0.15, 0.45)
+    assert 0.3 * (1 - 1e-9) <= fit["exponent"] <= 30.0 * (1 + 1e-9)  # stays inside the range it tries
+    assert {"widest_beam", "largest_emitter"} & set(fit["at_bound"])
+    (finding,) = fit_findings(fit, 0.15, (9, 9))
+    assert finding["code"] == "fit_at_bound" and finding["level"] == "suspicious"
+    # A very narrow spot (a single bright cell) hits the other end of the beam range.
+    spot = np.full((9, 9), 1.0)
+    spot[4, 4] = 5000.0
+    assert "narrowest_beam" in fit_ppfd_map(spot, 0.15, 0.45)["at_bound"]
 
 
 def test_prediction_follows_inverse_square_far_away():

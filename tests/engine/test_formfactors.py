@@ -4,7 +4,11 @@ import numpy as np
 import pytest
 from numpy.testing import assert_allclose
 
-from app.engine.formfactors import element_to_polygon
+from app.engine.formfactors import (
+    axis_element_to_axis_rectangles,
+    element_to_polygon,
+    upward_element_to_axis_rectangles,
+)
 from app.engine.patch_transfer import EXACT_WITHIN_SIZES
 
 
@@ -64,6 +68,43 @@ def test_perpendicular_rectangle_matches_quadrature():
     )[0]
     v = np.array([[[1, 0, 0.1], [1, 0.8, 0.1], [1, 0.8, 0.9], [1, 0, 0.9]]], float)
     assert_allclose(element_to_polygon(p[None], [0, 0, 1], v)[0, 0], f, rtol=1e-8)
+
+
+def test_closed_forms_for_axis_rectangles_match_howell_and_scipy():
+    """The fast closed forms the engine uses for its axis-aligned patches: Howell B-3 (parallel rectangle),
+    the perpendicular rectangle against SciPy's quadrature of the definition, and the infinite-wall limit."""
+    from scipy.integrate import dblquad
+
+    up = upward_element_to_axis_rectangles
+    ceiling = np.array([[[0, 0, 1], [1, 0, 1], [1, 1, 1], [0, 1, 1]]], float)
+    assert_allclose(up(np.zeros((1, 3)), ceiling), [0.138531606], rtol=1e-8)  # Howell B-3 check value
+    off = np.array([[[-0.4, -1.1, 0.7], [2.1, -1.1, 0.7], [2.1, 0.3, 0.7], [-0.4, 0.3, 0.7]]], float)
+    corners = [howell_b3(a, b, 0.7) for a, b in ((2.1, 0.3), (0.4, 0.3), (2.1, 1.1), (0.4, 1.1))]
+    assert_allclose(up(np.zeros((1, 3)), off), [sum(corners)], rtol=1e-9)  # four corner rectangles
+    p = np.array([0.3, 0.2, 0.0])
+    f = dblquad(
+        lambda z, y: z * 0.7 / (np.pi * (0.7**2 + (y - 0.2) ** 2 + z**2) ** 2), -0.5, 0.8, 0.1, 0.9, epsabs=1e-12
+    )[0]
+    wall = np.array([[[1, -0.5, 0.1], [1, 0.8, 0.1], [1, 0.8, 0.9], [1, -0.5, 0.9]]], float)
+    assert_allclose(up(p[None], wall), [f], rtol=1e-8)
+    big = 1e4
+    infinite = np.array([[[0, -big, 0], [0, big, 0], [0, big, big], [0, -big, big]]], float)
+    assert_allclose(up(np.array([[1e-6, 0, 0]]), infinite), [0.5], rtol=1e-3)
+
+
+def test_axis_elements_match_the_contour_formula_inside_a_box():
+    """Every face of a box room, cut into rectangles, seen from every other: the closed forms (each element's
+    frame turned so its normal is +z) equal Lambert's contour formula, and each row sums to at most 1."""
+    from app.engine.radiosity import wall_patches
+    from app.engine.scene import Enclosure
+
+    p = wall_patches(Enclosure(2.3, 3.1, 2.0, "diffuse", 0.5), (0.45,))
+    fast = axis_element_to_axis_rectangles(p.centres, p.normals, p.corners)
+    exact = element_to_polygon(p.centres, p.normals, p.corners)
+    np.fill_diagonal(fast, 0.0)
+    np.fill_diagonal(exact, 0.0)
+    assert_allclose(fast, exact, rtol=1e-9, atol=1e-13)
+    assert fast.sum(axis=1).max() <= 1.0 + 1e-9
 
 
 def test_point_formula_is_within_0_7_percent_beyond_the_exact_range():

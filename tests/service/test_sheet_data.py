@@ -205,3 +205,24 @@ def test_sheet_prints_the_grow_cycle_week_by_week(client):
     assert [r[6] for r in table["rows"]] == [f"{w['dli_avg']:.1f}" for w in weeks]
     html = client.get(f"/rooms/{rid}/sheet").text
     assert "Grow cycle by week" in html
+
+
+def test_walls_line_states_each_surface_finish():
+    """The title block's Walls line: one finish for a 0.1 room, every surface's own once it has any."""
+    path = next(p for p in SAMPLES if p.stem == "hobby-tent-peppers")
+    doc = json.loads(path.read_text(encoding="utf-8"))
+    wf = doc["room"]["wall_finish"]
+    rf = parse_room_file(json.dumps(doc).encode())
+    assert (
+        sheet("x", rf, analyse(rf), "letter")["room"]["walls"] == f"{wf['label']} ({wf['kind']}, {wf['reflectance']:g})"
+    )
+    doc["room"]["surface_finishes"] = {
+        "ceiling": {"kind": "absorbing"},
+        "back": {"kind": "diffuse", "reflectance": 0.5},
+    }
+    doc["room"]["open_sides"] = ["left"]
+    rf = parse_room_file(json.dumps(doc).encode())
+    walls = sheet("x", rf, analyse(rf), "letter")["room"]["walls"]
+    # Listed surfaces take their own finish; the rest keep the open side or the room-wide finish (Room.finish_of).
+    own = f"{wf['label']} ({wf['kind']}, {wf['reflectance']:g})"
+    assert walls == f"left: open; right, front: {own}; back: diffuse, 0.5; ceiling: absorbing", walls

@@ -1,15 +1,18 @@
 """Where fixtures can hang over a zone: even or edge-weighted rows and columns, straight or staggered, with the
-least gap between fixtures and to the walls, inside the room and clear of obstacles."""
+least gap between fixtures and to the closed sides (the walls, or a rack tier's own shelf edges and uprights),
+on the room's hanging grid when it has one, and clear of obstacles."""
 
 from __future__ import annotations
 
 import math
 
-from app.room.layout import rotated_half_extent_m
+from app.room.layout import covering_obstacle, rotated_half_extent_m
 from app.room.models import CanopyZone, FixtureType, Room
+from app.service import hanging
 
 EDGE_MARGIN = 0.35  # edge-weighted arrays put the outer centres at 0.35 of a cell from the zone edge (0.5 even)
 POSITION_STEP_M = 0.005  # positions are given to the half centimetre
+EDGE_TOL_M = 0.01  # a shelf edge within 1 cm of a wall is against that wall; an upright within 1 cm is at the edge
 
 
 def half_extent(t: FixtureType, rotation_deg: float) -> tuple[float, float]:
@@ -27,20 +30,18 @@ def turns(t: FixtureType) -> tuple[float, ...]:
 def axis(
     start: float,
     extent: float,
-    wall: float,
     n: int,
     half: float,
     gap: float,
     edge: bool,
-    wall_gaps: tuple[float, float] | None = None,
+    span: tuple[float, float],
 ):
-    """n centres along one axis over [start, start + extent], in a room 0..wall; None if they do not fit.
+    """n centres along one axis over the zone's [start, start + extent]; None if they do not fit.
 
-    ``gap`` separates neighbouring fixtures; ``wall_gaps`` (low wall, high wall) default to ``gap`` each.
+    ``gap`` separates neighbouring fixtures; ``span`` is where a footprint may reach along this axis (the walls
+    or the shelf's edges, less the gap on closed sides: :func:`spans`).
     """
-    g_lo, g_hi = wall_gaps if wall_gaps is not None else (gap, gap)
-    lo = _snap(max(start, half + g_lo), math.ceil)
-    hi = _snap(min(start + extent, wall - half - g_hi), math.floor)
+    lo, hi = centre_range(start, extent, half, span)
     if hi < lo - 1e-9:
         return None
     if n == 1:
@@ -59,6 +60,11 @@ def axis(
     return [round(a + k * pitch, 4) for k in range(n)]
 
 
+def centre_range(start: float, extent: float, half: float, span: tuple[float, float]) -> tuple[float, float]:
+    """Where a centre may sit: over the zone (so the fixture lights it) with its footprint inside ``span``."""
+    return _snap(max(start, span[0] + half), math.ceil), _snap(min(start + extent, span[1] - half), math.floor)
+
+
 def _snap(v: float, how=round) -> float:
     return round(how(round(v / POSITION_STEP_M, 6)) * POSITION_STEP_M, 4)
 
@@ -68,25 +74,87 @@ def positions(
 ):
     """Centres of a rows × cols array over the zone, or None when it cannot hang with the gaps.
 
-    The gap to a wall applies to closed sides; on an open side (a rack) a fixture may reach the room's edge.
+    The gap to a wall (or, on a rack, to the tier's own shelf edge) applies to closed sides; on an open side a
+    fixture may reach the edge. With a hanging grid every centre is moved to the nearest line that keeps it over
+    the zone and within the gaps; an array whose fixtures then collide or come closer than the gap is refused.
     """
-    gx, gy = wall_gaps(room, gap)
-    xs = axis(zone.x_m, zone.width_m, room.width_m, cols, hx, gap, edge, gx)
-    ys = axis(zone.y_m, zone.length_m, room.length_m, rows, hy, gap, edge, gy)
+    sx, sy = spans(room, zone, gap)
+    xs = axis(zone.x_m, zone.width_m, cols, hx, gap, edge, sx)
+    ys = axis(zone.y_m, zone.length_m, rows, hy, gap, edge, sy)
     if xs is None or ys is None:
         return None
     out = []
-    hi = _snap(min(zone.x_m + zone.width_m, room.width_m - hx - gx[1]), math.floor)
+    x_lo, x_hi = centre_range(zone.x_m, zone.width_m, hx, sx)
     for j, y in enumerate(ys):
         shift = 0.5 * (xs[1] - xs[0]) if stagger and cols > 1 and j % 2 == 1 else 0.0
-        out += [(_snap(x + shift), y) for x in xs if _snap(x + shift) <= hi + 1e-9]
+        out += [(_snap(x + shift), y) for x in xs if _snap(x + shift) <= x_hi + 1e-9]
+    if room.hanging_grid is not None:
+        out = to_grid(room, out, (x_lo, x_hi), centre_range(zone.y_m, zone.length_m, hy, sy))
+        if out is None:
+            return None
     return out if _apart(out, hx, hy, gap) else None
 
 
-def wall_gaps(room: Room, gap: float) -> tuple[tuple[float, float], tuple[float, float]]:
-    """((left, right), (front, back)) least gaps to the walls: ``gap`` on closed sides, 0 on open ones."""
-    side = {s: (0.0 if room.finish_of(s).kind == "open" else gap) for s in ("left", "right", "front", "back")}
-    return (side["left"], side["right"]), (side["front"], side["back"])
+def to_grid(room: Room, pos, x_range: tuple[float, float], y_range: tuple[float, float]):
+    """Each centre on the hanging grid's nearest line within the allowed ranges, or None if one has no line."""
+    g = room.hanging_grid
+    out = []
+    for x, y in pos:
+        gx = hanging.snap_m(x, g.origin_x_m, g.pitch_x_m, *x_range)
+        gy = hanging.snap_m(y, g.origin_y_m, g.pitch_y_m, *y_range)
+        if gx is None or gy is None:
+            return None
+        out.append((gx, gy))
+    return out
+
+
+def spans(room: Room, zone: CanopyZone, gap: float) -> tuple[tuple[float, float], tuple[float, float]]:
+    """Where footprints over the zone may reach, ((x0, x1), (y0, y1)), the gap taken off on closed sides.
+
+    A zone under a shelf (a rack's tier, :func:`app.room.layout.covering_obstacle`) is bounded by that shelf's
+    edges, since its fixtures hang under it; any other zone by the room's walls. A side on a room wall takes
+    the wall's finish (open: no gap); a shelf edge inside the room is closed only where an upright or side panel
+    (an obstacle along that edge, beside the tier) stands, and otherwise open.
+    """
+    shelf = covering_obstacle(room.obstacles, zone)
+    if shelf is None:
+        box = (0.0, 0.0, room.width_m, room.length_m)
+    else:
+        box = (
+            max(0.0, shelf.x_m),
+            max(0.0, shelf.y_m),
+            min(room.width_m, shelf.x_m + shelf.width_m),
+            min(room.length_m, shelf.y_m + shelf.length_m),
+        )
+    g = {s: gap if side_closed(room, zone, shelf, box, s) else 0.0 for s in ("left", "right", "front", "back")}
+    return (box[0] + g["left"], box[2] - g["right"]), (box[1] + g["front"], box[3] - g["back"])
+
+
+def side_closed(room: Room, zone: CanopyZone, shelf, box: tuple[float, float, float, float], side: str) -> bool:
+    """Whether one side of the space the zone's fixtures hang in is closed (a wall, an upright, a panel)."""
+    x0, y0, x1, y1 = box
+    at_wall = {
+        "left": x0 <= EDGE_TOL_M,
+        "front": y0 <= EDGE_TOL_M,
+        "right": x1 >= room.width_m - EDGE_TOL_M,
+        "back": y1 >= room.length_m - EDGE_TOL_M,
+    }[side]
+    if at_wall:
+        return room.finish_of(side).kind != "open"
+    top = shelf.z_m
+    for o in room.obstacles:
+        if o is shelf or o.z_m >= top - 1e-9 or o.z_m + o.height_m <= zone.canopy_height_m + 1e-9:
+            continue  # not beside the tier (above its shelf, or below its canopy)
+        ox0, oy0, ox1, oy1 = o.x_m, o.y_m, o.x_m + o.width_m, o.y_m + o.length_m
+        if side in ("left", "right"):
+            edge = x0 if side == "left" else x1
+            if ox0 <= edge + EDGE_TOL_M and ox1 >= edge - EDGE_TOL_M and oy1 > y0 and oy0 < y1:
+                return True
+        else:
+            edge = y0 if side == "front" else y1
+            if oy0 <= edge + EDGE_TOL_M and oy1 >= edge - EDGE_TOL_M and ox1 > x0 and ox0 < x1:
+                return True
+    return False
 
 
 def _apart(pos, hx: float, hy: float, gap: float) -> bool:

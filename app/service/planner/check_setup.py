@@ -17,10 +17,16 @@ from app.service.advice import describe, verify
 from app.service.analysis import analyse
 from app.service.planner.apply import CircuitsFull, apply_layouts
 from app.service.planner.options import PlanOptions
-from app.service.planner.search import zone_search
+from app.service.planner.search import Cancelled, zone_search
 from app.service.verdict import allowance_info
 
 QUICK = {"heights": 3, "max_fixtures_per_zone": 16}
+
+
+def stop_if(cancel: threading.Event) -> None:
+    """Raise :class:`Cancelled` when Cancel was pressed: called before each trial (each analysis of a change)."""
+    if cancel.is_set():
+        raise Cancelled
 
 
 def layout_fix(rf: RoomFile, base: dict[str, Any], zone, type_ids, label: str, opts: PlanOptions, cancel):
@@ -38,6 +44,7 @@ def layout_fix(rf: RoomFile, base: dict[str, Any], zone, type_ids, label: str, o
     )
     mine = layout.fixtures_lighting(room.zones, room.fixtures, zone.id)
     for lay in zone_search(rf, zone, types, search_opts, lambda *_: None, cancel)[:2]:
+        stop_if(cancel)
         try:
             changed = apply_layouts(rf, [lay])
         except CircuitsFull:
@@ -69,10 +76,12 @@ def check_setup(rf: RoomFile, opts: PlanOptions | None = None, progress=None, ca
     """Per zone: meets the target or not, with the checked changes that make it meet it."""
     opts = opts or PlanOptions()
     cancel = cancel or threading.Event()
-    base = analyse(rf, include_grids=False, with_fixes="all")
+    stop_if(cancel)
+    base = analyse(rf, include_grids=False, with_fixes="all", before_trial=lambda: stop_if(cancel))
     room = rf.room
     out = []
     for i, (z, a) in enumerate(zip(room.zones, base["zones"], strict=True)):
+        stop_if(cancel)
         if progress:
             progress(i / len(room.zones), z.name, 0, None)
         fixes = list(a.get("fixes", []))

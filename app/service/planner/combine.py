@@ -21,6 +21,7 @@ from app.room.library import fixture_library
 from app.room.models import RoomFile
 from app.room.roomfile import consistency_problems
 from app.service.analysis import analyse
+from app.service.hanging import grid_words
 from app.service.planner.apply import CircuitsFull, apply_layouts, full_load_w
 from app.service.planner.options import MIN_DIMMING, PlanOptions, ZoneLayout
 from app.service.planner.search import Cancelled, zone_search
@@ -93,6 +94,7 @@ def plan(rf: RoomFile, opts: PlanOptions | None = None, progress=None, cancel: t
         "unmet_zones": unmet,
         "not_offered": reasons,
         "verdict": allowance_info(rf.room),
+        "hanging_grid": grid_words(rf.room),
         "revision": rf.revision,
         "elapsed_s": time.perf_counter() - t0,
         "first_feasible_s": first_s,
@@ -114,7 +116,7 @@ def combine(rf, zones, per_zone, opts: PlanOptions, progress, cancel) -> tuple[l
         if signature in seen:
             continue
         seen.add(signature)
-        proposal, why = check_proposal(rf, choice, opts)
+        proposal, why = check_proposal(rf, choice, opts, cancel)
         if proposal is None:
             reasons.append(why)
             continue
@@ -135,7 +137,7 @@ def combine(rf, zones, per_zone, opts: PlanOptions, progress, cancel) -> tuple[l
     return proposals, reasons
 
 
-def check_proposal(rf: RoomFile, choice: list[ZoneLayout], opts: PlanOptions):
+def check_proposal(rf: RoomFile, choice: list[ZoneLayout], opts: PlanOptions, cancel: threading.Event | None = None):
     """(proposal, "") when the changed room, analysed whole, meets every target; else (None, why not).
 
     Zones are searched one at a time, so a neighbour's light (and the finer grid) can push a zone over the
@@ -149,8 +151,12 @@ def check_proposal(rf: RoomFile, choice: list[ZoneLayout], opts: PlanOptions):
         problems = consistency_problems(candidate)
         if problems:
             return None, "; ".join(p.message for p in problems)
+        if cancel is not None and cancel.is_set():
+            raise Cancelled
         result = analyse(candidate, include_grids=True, with_fixes=False)
         if meets_target(result):
+            if cancel is not None and cancel.is_set():
+                raise Cancelled
             candidate, result, choice = tighten(rf, candidate, result, choice, opts)
             break
         settled = [settle(lay, z) for lay, z in zip(choice, result["zones"], strict=True)]
@@ -168,6 +174,7 @@ def check_proposal(rf: RoomFile, choice: list[ZoneLayout], opts: PlanOptions):
     return {
         "layouts": [c.describe() for c in choice],
         "zones": [c.summary() for c in choice],
+        "hanging_grid": grid_words(rf.room),
         "room_file": candidate.model_dump(mode="json"),
         "figures": figures(result, full),
         "fixtures": len(candidate.room.fixtures),

@@ -19,7 +19,8 @@ class PlanOptions:
     objective : "power" (least input power), "count" (fewest fixtures) or "cost" (purchase price of the
         fixtures plus the electricity over ``years``).
     target : dim to the "bottom" of the DLI band (least power that meets it) or towards its "middle".
-    min_gap_m : least gap between two fixtures' footprints, and between a footprint and a wall.
+    min_gap_m : least gap between two fixtures' footprints, and between a footprint and a closed side (a wall,
+        or on a rack the tier's own closed shelf edge: :func:`app.service.planner.arrange.spans`).
     """
 
     type_ids: tuple[str, ...] = ()
@@ -57,6 +58,7 @@ class ZoneLayout:
     positions: list[tuple[float, float]] = field(default_factory=list)
     full_model: bool = False
     square_zone: bool = False  # rows × cols and cols × rows are the same choice over a square zone
+    on_grid: bool = False  # every centre is on the room's hanging grid (rails or hook points)
 
     @property
     def count(self) -> int:
@@ -89,7 +91,7 @@ class ZoneLayout:
         return (
             f"{self.zone_name}: {self.count} × {self.type_name} ({rows}{', staggered' if self.staggered else ''}"
             f"{', turned 90°' if self.rotation_deg else ''}), {100 * self.above_canopy_m:.0f} cm above the canopy, "
-            f"at {100 * self.dimming:.0f} %"
+            f"at {100 * self.dimming:.0f} %{', centres on the hanging grid' if self.on_grid else ''}"
         )
 
     def summary(self) -> dict:
@@ -100,4 +102,5 @@ class ZoneLayout:
             "count": self.count,
             "power_w": self.power_w,
             "dimming_pct": round(100 * self.dimming),
+            "on_grid": self.on_grid,
         }

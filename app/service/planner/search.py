@@ -98,7 +98,7 @@ def heights_for(room: Room, zone: CanopyZone, opts: PlanOptions) -> list[float]:
     return sorted({round(h, 3) for h in np.linspace(low, high, opts.heights)})
 
 
-def _layout(zone, t, rot, rows, cols, edge, stagger, pos, h, d, stats, ppfd, target, full) -> ZoneLayout:
+def _layout(zone, t, rot, rows, cols, edge, stagger, pos, h, d, stats, ppfd, target, full, grid) -> ZoneLayout:
     power = len(pos) * t.power_w * d
     return ZoneLayout(
         zone.id,
@@ -119,6 +119,7 @@ def _layout(zone, t, rot, rows, cols, edge, stagger, pos, h, d, stats, ppfd, tar
         list(pos),
         full,
         abs(zone.width_m - zone.length_m) <= 0.05 * max(zone.width_m, zone.length_m),
+        grid,
     )
 
 
@@ -126,6 +127,8 @@ def zone_search(
     rf: RoomFile, zone: CanopyZone, types: list[FixtureType], opts: PlanOptions, progress, cancel: threading.Event
 ) -> list[ZoneLayout]:
     """Layouts for one zone that meet its target, best first, the leaders recomputed with the full model."""
+    if cancel.is_set():
+        raise Cancelled
     room = rf.room
     target = ZoneTarget(rf, zone, opts)
     heights = heights_for(room, zone, opts)
@@ -148,7 +151,8 @@ def zone_search(
             dimmed = target.dimming(ppfd, light.area)
             if dimmed is None:
                 continue
-            lay = _layout(zone, t, rot, rows, cols, edge, stagger, pos, h, *dimmed, ppfd, target, False)
+            on_grid = room.hanging_grid is not None
+            lay = _layout(zone, t, rot, rows, cols, edge, stagger, pos, h, *dimmed, ppfd, target, False, on_grid)
             if opts.max_power_w is None or lay.power_w <= opts.max_power_w:
                 found.append(lay)
         progress(0.85 * done / total, found)
@@ -176,11 +180,11 @@ def rank_on_full_model(found, light: PlanningLight, target: ZoneTarget, types, o
             break
     out = []
     for lay in leaders:
-        if cancel.is_set():
-            raise Cancelled
         t = by_type[lay.type_id]
         best = None
-        for h in refined_heights(light, target, t, lay):
+        for h in refined_heights(light, target, t, lay, cancel):
+            if cancel.is_set():
+                raise Cancelled
             ppfd = (
                 light.full(t, lay.rotation_deg, h, lay.positions)
                 if light.walls_return
@@ -203,6 +207,7 @@ def rank_on_full_model(found, light: PlanningLight, target: ZoneTarget, types, o
                 ppfd,
                 target,
                 True,
+                lay.on_grid,
             )
             if best is None or full.key(opts.objective) < best.key(opts.objective):
                 best = full
@@ -212,13 +217,15 @@ def rank_on_full_model(found, light: PlanningLight, target: ZoneTarget, types, o
     return out
 
 
-def refined_heights(light: PlanningLight, target: ZoneTarget, t: FixtureType, lay: ZoneLayout) -> list[float]:
+def refined_heights(light: PlanningLight, target: ZoneTarget, t: FixtureType, lay: ZoneLayout, cancel) -> list[float]:
     """The best heights of this arrangement on a fine ladder (planning estimate), for the full model to judge."""
     low, high = light.span
     ladder = np.linspace(low, high, REFINE_STEPS) if high > low else np.array([low])
     hx, hy = half_extent(t, lay.rotation_deg)
     scored = []
     for h in ladder:
+        if cancel.is_set():
+            raise Cancelled
         if not clear_of_obstacles(light.room, lay.positions, hx, hy, float(h)):
             continue
         dimmed = target.dimming(light.estimate(t, lay.rotation_deg, float(h), lay.positions), light.area)

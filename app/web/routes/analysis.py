@@ -68,31 +68,50 @@ def _zone_of(result: dict[str, Any], room_id: str, zone_id: str) -> dict[str, An
     return zone
 
 
+class CSVResponse(Response):
+    media_type = "text/csv"
+
+
+class SVGResponse(Response):
+    media_type = "image/svg+xml"
+
+
+TEXT = {"schema": {"type": "string"}}
+
+
 @router.get(
     "/api/rooms/{room_id}/zones/{zone_id}/grid.csv",
-    responses=ERRORS,
+    response_class=CSVResponse,
+    responses={
+        **ERRORS,
+        200: {
+            "description": "zone_id, x_m, y_m, PPFD and DLI of every grid point (long format)",
+            "content": {"text/csv": TEXT},
+        },
+    },
     summary="A zone's PPFD and DLI grid as CSV",
 )
-def zone_csv(request: Request, room_id: str, zone_id: str):
+def zone_csv(request: Request, room_id: str, zone_id: str) -> CSVResponse:
     zone = _zone_of(analysed(load_room(store_of(request), room_id), request=request), room_id, zone_id)
-    return Response(
+    return CSVResponse(
         grid_csv(zone),
-        media_type="text/csv",
         headers={"Content-Disposition": f'attachment; filename="{room_id}-{zone_id}.csv"'},
     )
 
 
 @router.get(
     "/api/rooms/{room_id}/zones/{zone_id}/map.svg",
-    responses=ERRORS,
+    response_class=SVGResponse,
+    responses={**ERRORS, 200: {"description": "The zone's PPFD or DLI heatmap", "content": {"image/svg+xml": TEXT}}},
     summary="A zone's heatmap as SVG",
 )
-def zone_svg(request: Request, room_id: str, zone_id: str, quantity: str = Query("ppfd", pattern="^(ppfd|dli)$")):
+def zone_svg(
+    request: Request, room_id: str, zone_id: str, quantity: str = Query("ppfd", pattern="^(ppfd|dli)$")
+) -> SVGResponse:
     rf = load_room(store_of(request), room_id)
     zone = _zone_of(analysed(rf, request=request), room_id, zone_id)
-    return Response(
+    return SVGResponse(
         heatmap_svg(zone, rf.room.display_units, quantity),
-        media_type="image/svg+xml",
         headers={"Content-Disposition": f'attachment; filename="{room_id}-{zone_id}-{quantity}.svg"'},
     )
 

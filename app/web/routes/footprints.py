@@ -2,12 +2,11 @@
 
 from __future__ import annotations
 
-from typing import Any
-
 from fastapi import APIRouter, Query, Request
 from starlette.concurrency import run_in_threadpool
 
 from app.service.footprints import footprints
+from app.service.results_library import Footprint
 from app.web.bodies import ROOM_BODY, room_from_body
 from app.web.errors import ERRORS
 
@@ -22,6 +21,6 @@ router = APIRouter(tags=["analysis"])
 )
 async def fixture_footprints(
     request: Request, fixture: list[str] = Query(default=[], description="fixture ids", max_length=50)
-) -> list[dict[str, Any]]:
+) -> list[Footprint]:
     rf = await room_from_body(request)
     return await run_in_threadpool(footprints, rf.room, fixture)

@@ -17,6 +17,7 @@ from app.room.storage import StaleRevision
 from app.service import core_areas, meter
 from app.service.maintained import output_basis
 from app.service.meter_edits import delete_reading_set, lux_factor_presets, put_reading_set, set_output_age
+from app.service.results_meter import AppliedFit, FixtureCard, ReadingsComparison, SavedRoomChange, ZoneSquares
 from app.web.bodies import ApiIn
 from app.web.deps import load_room, render, store_of
 from app.web.errors import ERRORS, ApiError, not_found, room_error, stale_revision
@@ -92,16 +93,26 @@ def meter_page(request: Request, room_id: str, format: str | None = None):
     return render(request, "meter.html", meter_page_data(room_id, rf), format)
 
 
-@router.post("/api/rooms/{room_id}/readings", responses=ERRORS, tags=["meter"], summary="Add or replace a reading set")
-def save_readings(request: Request, room_id: str, body: ReadingSetIn) -> dict[str, Any]:
+@router.post(
+    "/api/rooms/{room_id}/readings",
+    response_model_exclude_unset=True,
+    responses=ERRORS,
+    tags=["meter"],
+    summary="Add or replace a reading set",
+)
+def save_readings(request: Request, room_id: str, body: ReadingSetIn) -> SavedRoomChange:
     doc = body.reading_set.model_dump(mode="json")
     return _save(request, room_id, lambda rf: put_reading_set(rf, body.revision, doc))
 
 
 @router.delete(
-    "/api/rooms/{room_id}/readings/{set_id}", responses=ERRORS, tags=["meter"], summary="Delete a reading set"
+    "/api/rooms/{room_id}/readings/{set_id}",
+    response_model_exclude_unset=True,
+    responses=ERRORS,
+    tags=["meter"],
+    summary="Delete a reading set",
 )
-def delete_readings(request: Request, room_id: str, set_id: str, revision: int = Query(ge=0)) -> dict[str, Any]:
+def delete_readings(request: Request, room_id: str, set_id: str, revision: int = Query(ge=0)) -> SavedRoomChange:
     def change(rf: RoomFile) -> RoomFile:
         try:
             return delete_reading_set(rf, revision, set_id)
@@ -113,6 +124,7 @@ def delete_readings(request: Request, room_id: str, set_id: str, revision: int =
 
 @router.get(
     "/api/rooms/{room_id}/readings/{set_id}/compare",
+    response_model_exclude_unset=True,
     responses=ERRORS,
     tags=["meter"],
     summary="Readings against the model: residuals, RMS, worst point, outliers, fitted output factor",
@@ -123,7 +135,7 @@ def compare_readings(
     set_id: str,
     fit: FitKind = "room",
     outlier_factor: float = Query(OUTLIER_FACTOR, gt=1, le=10),
-) -> dict[str, Any]:
+) -> ReadingsComparison:
     rf = load_room(store_of(request), room_id)
     try:
         return meter.compare(rf, set_id, fit, outlier_factor)
@@ -134,11 +146,12 @@ def compare_readings(
 
 @router.post(
     "/api/rooms/{room_id}/readings/{set_id}/apply",
+    response_model_exclude_unset=True,
     responses=ERRORS,
     tags=["meter"],
     summary="Scale the fitted fixture types' PPF by their factor (a revision-checked save)",
 )
-def apply_fit(request: Request, room_id: str, set_id: str, body: ApplyIn) -> dict[str, Any]:
+def apply_fit(request: Request, room_id: str, set_id: str, body: ApplyIn) -> AppliedFit:
     changed: list[dict] = []
 
     def change(rf: RoomFile) -> RoomFile:
@@ -156,11 +169,12 @@ def apply_fit(request: Request, room_id: str, set_id: str, body: ApplyIn) -> dic
 
 @router.post(
     "/api/rooms/{room_id}/output-age",
+    response_model_exclude_unset=True,
     responses=ERRORS,
     tags=["meter"],
     summary="The fixtures' hours in service, dirt factor, shown age and each type's output maintenance",
 )
-def save_output_age(request: Request, room_id: str, body: OutputAgeIn) -> dict[str, Any]:
+def save_output_age(request: Request, room_id: str, body: OutputAgeIn) -> SavedRoomChange:
     age = body.output_age.model_dump(mode="json")
     maint = {k: (v.model_dump(mode="json") if v is not None else None) for k, v in body.maintenance.items()}
 
@@ -177,6 +191,7 @@ def save_output_age(request: Request, room_id: str, body: OutputAgeIn) -> dict[s
 
 @router.get(
     "/api/fixture-card",
+    response_model_exclude_unset=True,
     responses=ERRORS,
     tags=["meter"],
     summary="Averages over nested squares under one fixture in open air",
@@ -189,7 +204,7 @@ def fixture_card(
     threshold_umol: float = Query(core_areas.DEFAULT_THRESHOLD_UMOL, gt=0, le=3000),
     dimming_pct: float = Query(100.0, ge=10, le=100),
     units: Literal["imperial", "metric"] | None = None,
-) -> dict[str, Any]:
+) -> FixtureCard:
     types = dict(fixture_library())
     display = units or "imperial"
     if room_id:
@@ -204,6 +219,7 @@ def fixture_card(
 
 @router.get(
     "/api/rooms/{room_id}/zones/{zone_id}/squares",
+    response_model_exclude_unset=True,
     responses=ERRORS,
     tags=["meter"],
     summary="Averages over nested squares centred at a spot of a zone's canopy map",
@@ -215,7 +231,7 @@ def zone_squares(
     x_m: float = Query(ge=0, le=300),
     y_m: float = Query(ge=0, le=300),
     threshold_umol: float = Query(core_areas.DEFAULT_THRESHOLD_UMOL, gt=0, le=3000),
-) -> dict[str, Any]:
+) -> ZoneSquares:
     rf = load_room(store_of(request), room_id)
     room = rf.room
     zones = [z.id for z in room.zones]

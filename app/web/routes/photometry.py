@@ -2,18 +2,17 @@
 
 from __future__ import annotations
 
-from typing import Any
-
 from fastapi import APIRouter, Query, Request
 
-from app.engine.fitting import efficacy_findings, fit_ppfd_map, plausibility, predict_at_heights
+from app.engine.fitting import efficacy_findings, fit_findings, fit_ppfd_map, plausibility, predict_at_heights
 from app.engine.spectrum import led_mix, parse_spectrum_csv, spectrum_figures
 from app.room.models import FixtureType
 from app.room.roomfile import Problem
 from app.room.storage import slugify
 from app.service.photometry import MAX_FILE_BYTES as MAX_PHOTOMETRY_BYTES
-from app.service.photometry import PhotometryError, fixture_type_from, parse_ies, parse_ldt
+from app.service.photometry import PhotometryError, fixture_type_from, flux_findings, parse_ies, parse_ldt
 from app.service.results import MapFitResult, SpectrumFigures
+from app.service.results_library import ImportedFixture
 from app.web.bodies import MapFitIn, SpectrumIn
 from app.web.errors import ERRORS, ApiError
 
@@ -38,7 +37,7 @@ async def import_photometry(
     umol_per_lumen: float | None = Query(None, gt=0, le=1),
     power_w: float | None = Query(None, gt=0, le=10000),
     name: str = Query("", max_length=120),
-) -> dict[str, Any]:
+) -> ImportedFixture:
     raw = await request.body()
     if len(raw) > MAX_PHOTOMETRY_BYTES:
         raise ApiError(413, "too_large", f"a photometric file over {MAX_PHOTOMETRY_BYTES:,} bytes is refused")
@@ -54,7 +53,7 @@ async def import_photometry(
             umol_per_lumen=umol_per_lumen,
         )
         ftype = FixtureType.model_validate(ftype).model_dump(mode="json")
-        report["findings"] = efficacy_findings(ftype["ppf_umol_s"], ftype["power_w"])
+        report["findings"] = efficacy_findings(ftype["ppf_umol_s"], ftype["power_w"]) + flux_findings(report)
     except PhotometryError as exc:
         raise ApiError(
             422, "bad_photometry", str(exc), [Problem(f"line {exc.line}" if exc.line else "file", str(exc))]
@@ -102,7 +101,8 @@ def fit_map(body: MapFitIn) -> MapFitResult:
     return {
         "fit": fit,
         "predictions": predict_at_heights(fit, shape, body.cell_m, heights),
-        "findings": plausibility(
+        "findings": fit_findings(fit, body.cell_m, shape)
+        + plausibility(
             body.readings,
             body.cell_m,
             body.claimed_ppf_umol_s,

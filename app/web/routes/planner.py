@@ -3,14 +3,13 @@
 from __future__ import annotations
 
 from concurrent.futures import TimeoutError as FutureTimeout
-from typing import Any
 
 from fastapi import APIRouter, Query, Request
 
 from app.room.library import fixture_library
 from app.service.jobs_pool import QueueFull
 from app.service.planner import JobBoard, PlanOptions, check_setup, curves
-from app.service.results import JobStarted, PlannerJob
+from app.service.results_planner import Curves, JobStarted, PlannerJob, SetupCheck
 from app.web.bodies import PlanIn
 from app.web.deps import load_room, store_of, within_budget
 from app.web.errors import ERRORS, ApiError, not_found
@@ -77,12 +76,19 @@ def start_check(request: Request, room_id: str) -> JobStarted:
     return {"job_id": job.id, "revision": rf.revision, "queue_position": job.public()["queue_position"]}
 
 
-@router.get("/api/plan-jobs/{job_id}", responses=ERRORS, summary="Progress and best layouts so far")
+@router.get(
+    "/api/plan-jobs/{job_id}",
+    response_model_exclude_unset=True,
+    responses=ERRORS,
+    summary="Progress and best layouts so far",
+)
 def plan_job(request: Request, job_id: str) -> PlannerJob:
     return _job_or_404(request, job_id).public()
 
 
-@router.delete("/api/plan-jobs/{job_id}", responses=ERRORS, summary="Cancel a planner job")
+@router.delete(
+    "/api/plan-jobs/{job_id}", response_model_exclude_unset=True, responses=ERRORS, summary="Cancel a planner job"
+)
 def cancel_job(request: Request, job_id: str) -> PlannerJob:
     job = _job_or_404(request, job_id)
     job.cancel.set()
@@ -91,10 +97,11 @@ def cancel_job(request: Request, job_id: str) -> PlannerJob:
 
 @router.get(
     "/api/rooms/{room_id}/check",
+    response_model_exclude_unset=True,
     responses=ERRORS,
     summary="Does the room meet each zone's target? If not, the smallest changes that do",
 )
-def check_room(request: Request, room_id: str) -> dict[str, Any]:
+def check_room(request: Request, room_id: str) -> SetupCheck:
     rf = load_room(store_of(request), room_id)
     within_budget(request, rf)
     budget_s = request.app.state.settings.max_analysis_s
@@ -115,6 +122,7 @@ def check_room(request: Request, room_id: str) -> dict[str, Any]:
 
 @router.get(
     "/api/rooms/{room_id}/curves",
+    response_model_exclude_unset=True,
     responses=ERRORS,
     summary="Average and peak PPFD against hanging height and dimming",
 )
@@ -123,7 +131,7 @@ def room_curves(
     room_id: str,
     zone: str = Query(..., max_length=40),
     fixture: list[str] = Query(default=[], max_length=200),
-) -> dict[str, Any]:
+) -> Curves:
     rf = load_room(store_of(request), room_id)
     within_budget(request, rf)
     try:

@@ -3,7 +3,7 @@
 from __future__ import annotations
 
 from fastapi import APIRouter, Request
-from fastapi.responses import JSONResponse, Response
+from fastapi.responses import Response
 from pydantic import BaseModel
 from starlette.concurrency import run_in_threadpool
 
@@ -12,6 +12,7 @@ from app.room.storage import RoomNotFound, StaleRevision
 from app.web.bodies import ROOM_BODY, ROOM_RESPONSE, room_from_body
 from app.web.deps import load_room, store_of
 from app.web.errors import ERRORS, not_found, stale_revision
+from app.web.json_edge import FiniteJSONResponse
 
 router = APIRouter(prefix="/api/rooms", tags=["rooms"])
 
@@ -73,8 +74,8 @@ def _import(store, rf):
 
 
 @router.get("/{room_id}", response_model=None, responses={**ERRORS, **ROOM_RESPONSE}, summary="Read a room file")
-def read_room(request: Request, room_id: str) -> JSONResponse:
-    return JSONResponse(dump_room_file(load_room(store_of(request), room_id)))
+def read_room(request: Request, room_id: str) -> FiniteJSONResponse:
+    return FiniteJSONResponse(dump_room_file(load_room(store_of(request), room_id)))
 
 
 @router.put(

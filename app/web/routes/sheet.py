@@ -22,7 +22,13 @@ def dxf_filename(room_name: str, tier: int | None) -> str:
 
 @router.get(
     "/api/rooms/{room_id}/plan.dxf",
-    responses={**ERRORS, 200: {"content": {"application/dxf": {}}, "description": "A DXF drawing (AutoCAD R2010)."}},
+    responses={
+        **ERRORS,
+        200: {
+            "content": {"application/dxf": {"schema": {"type": "string"}}},
+            "description": "A DXF drawing (AutoCAD R2010).",
+        },
+    },
     response_class=Response,
     summary="The sheet's dimensioned plan as DXF: one layer per tier and per circuit, in the room's units",
 )

@@ -2,11 +2,10 @@
 
 from __future__ import annotations
 
-from typing import Any
-
 from fastapi import APIRouter, Request
 from fastapi.responses import HTMLResponse
 
+from app.service.results_year import YearView
 from app.service.year import year_view
 from app.web.deps import load_room, render, store_of
 from app.web.errors import ERRORS
@@ -22,9 +21,10 @@ def year_page(request: Request, room_id: str, format: str | None = None):
 
 @router.get(
     "/api/rooms/{room_id}/year",
+    response_model_exclude_unset=True,
     responses=ERRORS,
     tags=["year"],
     summary="Grow cycle by week, greenhouse months, tariff placement and payback of a room",
 )
-def year_data(request: Request, room_id: str) -> dict[str, Any]:
+def year_data(request: Request, room_id: str) -> YearView:
     return year_view(room_id, load_room(store_of(request), room_id))

@@ -55,29 +55,60 @@ function meaningful(w, a) {
   return part.share >= MIN_SHARE || part.area_m2 >= cell;
 }
 
-/** The fix's words and, when it carries one, the edit that applies it. */
-function fixOf(w) {
-  if (!w.fix) return { text: "", machine: null };
-  if (typeof w.fix === "string") return { text: w.fix, machine: null };
-  return { text: w.fix.text || w.fix.message || w.fix.summary || "", machine: w.fix.action ? w.fix : null };
+/**
+ * The fix's words and the first verified structured fix the server sent with the warning (``w.fixes``,
+ * app/service/advice.py), or null. ``w.fix`` is the sentence; the layout cautions found here carry only words.
+ */
+export function fixOf(w) {
+  const text = typeof w.fix === "string" ? w.fix : (w.fix && w.fix.text) || "";
+  const machine = (w.fixes || []).find((f) => f && f.verified && f.action in FIX_ACTIONS) || null;
+  return { text: text || (machine ? machine.text || "" : ""), machine };
 }
 
-/** Apply a machine fix as one undoable edit; returns the refusal reasons, or null if the action is unknown. */
+// Each action edits the room exactly as apply_fix in app/service/advice.py does (the same keys).
+const PER_FIXTURE = { set_dimming: "dimming_pct", set_height: "hanging_height_m", set_circuit: "circuit" };
+const perFixture = (fix) => (r) => {
+  const key = PER_FIXTURE[fix.action], values = fix.fixtures || {};
+  for (const f of r.fixtures) if (Object.prototype.hasOwnProperty.call(values, f.id)) f[key] = values[f.id];
+};
+const FIX_ACTIONS = {
+  set_photoperiod: (fix) => (r) => { for (const z of r.zones) if (z.id === fix.zone) z.photoperiod_h = fix.hours; },
+  set_dimming: perFixture,
+  set_height: perFixture,
+  set_circuit: perFixture,
+  add_fixtures: (fix) => (r) => {
+    const gone = new Set(fix.remove || []);
+    r.fixtures = r.fixtures.filter((f) => !gone.has(f.id)).concat((fix.fixtures || []).map((f) => ({ ...f })));
+    const known = new Set(r.fixture_types.map((t) => t.id));
+    for (const t of fix.fixture_types || []) if (!known.has(t.id)) r.fixture_types.push(JSON.parse(JSON.stringify(t)));
+  },
+};
+
+/** Apply a structured fix as one undoable edit; returns the refusal reasons ([] when applied), null if unknown. */
 export function applyFix(fix) {
-  const perFixture = (key, map) => (r) => { for (const f of r.fixtures) if (f.id in map) f[key] = map[f.id]; };
-  const zones = (fix.zones || (fix.zone_id ? { [fix.zone_id]: fix.hours ?? fix.photoperiod_h } : {}));
-  const actions = {
-    set_dimming: () => perFixture("dimming_pct", fix.fixtures || {}),
-    set_hanging_height: () => perFixture("hanging_height_m", fix.fixtures || {}),
-    set_height: () => perFixture("hanging_height_m", fix.fixtures || {}),
-    switch_off: () => (r) => { for (const f of r.fixtures) if ((fix.fixtures || []).includes(f.id)) f.on = false; },
-    set_photoperiod: () => (r) => {
-      if (fix.room_hours ?? fix.schedule_hours) r.schedule.photoperiod_h = fix.room_hours ?? fix.schedule_hours;
-      for (const z of r.zones) if (z.id in zones) z.photoperiod_h = zones[z.id];
-    },
-  };
-  if (!actions[fix.action]) return null;
-  return commit(actions[fix.action]());
+  const make = FIX_ACTIONS[fix && fix.action];
+  return make ? commit(make(fix)) : null;
+}
+
+/** The Apply button for a verified fix: one undoable edit, refused (with the reasons) if the room has moved on. */
+function applyButton(machine, zoneId) {
+  const apply = document.createElement("button");
+  apply.type = "button"; apply.className = "apply-fix"; apply.textContent = "Apply";
+  apply.dataset.fixAction = machine.action;
+  if (zoneId) apply.dataset.fixZone = zoneId;
+  apply.setAttribute("aria-label", `Apply the fix: ${Units.localise(machine.text || machine.action, state.units)}`);
+  apply.addEventListener("click", () => {
+    if (!state.analysisCurrent || state.analysing) {
+      apply.title = "The room changed since this fix was checked: wait for the new analysis.";
+      apply.textContent = "Checking again…";
+      return;
+    }
+    const refused = applyFix(machine);
+    if (refused === null) { apply.disabled = true; apply.textContent = "Cannot apply here"; }
+    else if (refused.length) { apply.textContent = "Not applied"; apply.title = refused.join("; "); }
+    else { apply.disabled = true; apply.textContent = "Applied"; }
+  });
+  return apply;
 }
 
 export function renderWarnings(a, plan) {
@@ -85,6 +116,7 @@ export function renderWarnings(a, plan) {
   ul.innerHTML = "";
   const list = [...a.warnings.filter((w) => meaningful(w, a)), ...layoutCautions(room(), state.units)];
   if (!list.length) { ul.innerHTML = "<li class='ok'>No warnings: every zone is in its band.</li>"; return; }
+  const offered = new Set();
   for (const w of list) {
     const li = document.createElement("li");
     li.className = `warning ${w.severity}`;
@@ -103,16 +135,10 @@ export function renderWarnings(a, plan) {
       if (bounds) plan.highlight(bounds);
     });
     li.appendChild(btn);
-    if (fix.machine) {
-      const apply = document.createElement("button");
-      apply.type = "button"; apply.className = "apply-fix"; apply.textContent = "Apply";
-      apply.setAttribute("aria-label", `Apply the fix: ${fix.text || fix.machine.action}`);
-      apply.addEventListener("click", () => {
-        const refused = applyFix(fix.machine);
-        if (refused === null) { apply.disabled = true; apply.textContent = "Cannot apply here"; }
-        else if (refused.length) { apply.textContent = "Not applied"; apply.title = refused.join("; "); }
-      });
-      li.appendChild(apply);
+    const key = fix.machine && JSON.stringify(fix.machine);
+    if (fix.machine && !offered.has(key)) {   // a zone's warnings share its fixes: one button for each fix
+      offered.add(key);
+      li.appendChild(applyButton(fix.machine, w.zone_id));
     }
     ul.appendChild(li);
   }

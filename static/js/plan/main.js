@@ -102,7 +102,8 @@ $("plan-run").addEventListener("click", async () => {
       const res = j.result;
       $("plan-message").textContent = res.proposals.length
         ? `${res.proposals.length} layouts meet every zone's target (searched in ${fmt(res.elapsed_s, 1)} s, from revision ${res.revision}).`
-        : `No layout meets every target${res.unmet_zones.length ? ` (nothing fits ${res.unmet_zones.join(", ")} with these types and a ${fmt(body.min_gap_m * 100)} cm gap)` : ""}${res.not_offered.length ? `: ${res.not_offered[0]}` : ""}. Try other fixture types, a smaller gap or a larger budget.`;
+        : `No layout meets every target${res.unmet_zones.length ? ` (nothing fits ${res.unmet_zones.join(", ")} with these types and a ${fmt(body.min_gap_m * 100)} cm gap${res.hanging_grid ? " on the hanging grid" : ""})` : ""}${res.not_offered.length ? `: ${res.not_offered[0]}` : ""}. Try other fixture types, a smaller gap or a larger budget.`;
+      if (res.hanging_grid) $("plan-message").textContent += ` ${res.hanging_grid}`;
       $("proposals").innerHTML = res.proposals.map(card).join("");
     }
   } catch (e) { $("plan-message").textContent = `Planner: ${e.message}`; }

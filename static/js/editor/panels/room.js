@@ -1,4 +1,5 @@
-// The room tab: size, walls, map spacing, the room's own units, schedule and circuits.
+// The room tab: size, walls (one finish, or each its own: surfaces.js), map spacing, the room's own units,
+// schedule, hanging grid and circuits.
 // Resizing the room carries the first canopy zone (and any zone or shelf laid out like it) with it.
 
 import * as Units from "../../lib/units.js";
@@ -6,6 +7,7 @@ import { escapeHtml } from "../../lib/format.js";
 import { $, page, state, room, round4 } from "../state.js";
 import { rename } from "../autosave.js";
 import { setIfIdle, tryCommit, lengthOf, numberOf, showFieldError, clearFieldError } from "../fields.js";
+import { renderSurfaces, wireSurfaces } from "./surfaces.js";
 
 const SAME_M = 0.01;            // edges within 1 cm are "the same"
 const MIN_ZONE_M = 0.05;
@@ -37,12 +39,36 @@ export function renderRoomPanel() {
   $("r-finish").value = key ? key[0] : "";
   setIfIdle($("r-refl"), r.wall_finish.reflectance);
   for (const b of document.querySelectorAll("#r-open input")) b.checked = r.open_sides.includes(b.value);
+  renderSurfaces();
   for (const input of document.querySelectorAll("[data-schedule]")) setIfIdle(input, r.schedule[input.dataset.schedule]);
   setIfIdle($("s-cur"), r.schedule.currency);
   setIfIdle($("room-name"), r.name);
   $("r-units").value = r.display_units;
   setIfIdle($("snap-step"), Units.lengthInput(state.snapStep, u));
   for (const el of document.querySelectorAll("[data-unit]")) el.textContent = `(${Units.inputUnit(u)})`;
+  const g = r.hanging_grid;
+  if (g) gridDraft = {};
+  for (const input of document.querySelectorAll("[data-hanging]")) {
+    const v = g ? g[input.dataset.hanging] : null;
+    setIfIdle(input, g ? (v === null || v === undefined ? "" : Units.lengthInput(v, u)) : (gridDraft[input.dataset.hanging] || ""));
+  }
+}
+
+let gridDraft = {}; // boxes typed before the grid has a pitch (nothing to save yet)
+
+/** The hanging grid from its four boxes: null (no grid) when both pitches are blank, else the field. */
+function hangingGridFromBoxes(current) {
+  const out = {};
+  for (const input of document.querySelectorAll("[data-hanging]")) {
+    const key = input.dataset.hanging;
+    if (!input.value.trim()) { clearFieldError(input); out[key] = key.startsWith("pitch") ? null : 0; continue; }
+    const m = lengthOf(input, { positive: key.startsWith("pitch") });
+    if (m === null) return undefined;
+    clearFieldError(input);
+    out[key] = round4(m);
+  }
+  if (out.pitch_x_m === null && out.pitch_y_m === null) return null;
+  return Object.assign({ label: (current && current.label) || "" }, out);
 }
 
 export function renderCircuits() {
@@ -87,6 +113,7 @@ export function wireRoomPanel() {
     const v = numberOf($("r-refl"), 0, 1, "reflectance");
     if (v !== null) tryCommit($("r-refl"), (r) => { r.wall_finish = Object.assign({}, r.wall_finish, { reflectance: v, label: "Custom" }); });
   });
+  wireSurfaces();
   for (const box of document.querySelectorAll("#r-open input")) {
     box.addEventListener("change", () => tryCommit(box, (r) => {
       r.open_sides = [...document.querySelectorAll("#r-open input")].filter((b) => b.checked).map((b) => b.value);
@@ -99,6 +126,14 @@ export function wireRoomPanel() {
       const key = input.dataset.schedule, [lo, hi, what] = scheduleRange[key];
       const v = numberOf(input, lo, hi, what);
       if (v !== null) tryCommit(input, (r) => { r.schedule[key] = v; });
+    });
+  }
+  for (const input of document.querySelectorAll("[data-hanging]")) {
+    input.addEventListener("change", () => {
+      gridDraft[input.dataset.hanging] = input.value;
+      const grid = hangingGridFromBoxes(room().hanging_grid);
+      if (grid === undefined || (grid === null && !room().hanging_grid)) return;
+      tryCommit(input, (r) => { r.hanging_grid = grid; });
     });
   }
   $("s-cur").addEventListener("change", () => tryCommit($("s-cur"), (r) => { r.schedule.currency = $("s-cur").value.trim().slice(0, 8) || "USD"; }));
