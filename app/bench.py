@@ -24,6 +24,7 @@ from app.assets import asset_dir
 from app.bench_scenes import sample, tent_with_filter_and_fan, white_room
 from app.engine import cache as engine_cache
 from app.engine import compute, direct
+from app.engine.aim import aim_matrix
 from app.engine.compute import compute_scene
 from app.engine.direct import irradiance_from_nodes
 from app.engine.emitters import local_nodes
@@ -62,10 +63,8 @@ def _dense_nodes(e, n=32):
     if e.shape == "point":
         return np.array([[e.x_m, e.y_m, e.z_m]]), np.array([e.flux_umol_s])
     u, v, w = local_nodes(e, e.largest_dimension_m / n / 0.5 / 2)  # segments ≈ n per dimension
-    a = np.radians(e.rotation_deg)
-    xyz = np.column_stack(
-        [e.x_m + np.cos(a) * u - np.sin(a) * v, e.y_m + np.sin(a) * u + np.cos(a) * v, np.full(u.size, e.z_m)]
-    )
+    m = aim_matrix(e.rotation_deg, e.tilt_deg, e.aim_deg)  # the face turned (and tilted) about its centre
+    xyz = np.array([e.x_m, e.y_m, e.z_m]) + np.outer(u, m[:, 0]) + np.outer(v, m[:, 1])
     return xyz, w * e.flux_umol_s
 
 
@@ -81,7 +80,8 @@ def brute_force(scene: EngineScene) -> list[np.ndarray]:
                 continue
             nodes, flux = _dense_nodes(e)
             near = direct.relevant_boxes(e, g, scene.boxes, 1e9)
-            total += irradiance_from_nodes(pts, nodes, flux, e.distribution, e.rotation_deg, boxes=near)
+            aim = {"tilt_deg": e.tilt_deg, "aim_deg": e.aim_deg}
+            total += irradiance_from_nodes(pts, nodes, flux, e.distribution, e.rotation_deg, boxes=near, **aim)
             if scene.enclosure.has_specular:
                 enc = scene.enclosure
                 for i, j, w in image_list(e, g, enc):
@@ -100,6 +100,7 @@ def brute_force(scene: EngineScene) -> list[np.ndarray]:
                         boxes=near,
                         mirror=mirror,
                         fold_m=(enc.width_m, enc.length_m),
+                        **aim,
                     )
         out.append(total.reshape(g.ny, g.nx))
     if scene.enclosure.has_diffuse:

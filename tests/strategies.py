@@ -31,6 +31,9 @@ def valid_room_docs(draw, names=SAMPLE_NAMES) -> dict:
     for f in room["fixtures"]:
         f["dimming_pct"] = draw(st.floats(10, 100).map(lambda d: round(d, 1)))
         f["on"] = draw(st.booleans())
+        # Mostly hung straight down; now and then tilted, sideways or facing up, leaning any way.
+        f["tilt_deg"] = draw(st.sampled_from([0.0, 0.0, 0.0, 35.0, 90.0, 180.0]))
+        f["aim_deg"] = draw(st.floats(0, 359.9).map(lambda a: round(a, 1)))
         # The layout rule's own footprint of the validated geometry (a single bar is as wide as its bar), so the
         # walls rule the server applies agrees.
         size = layout.footprint_size_m(Geometry.model_validate(types[f["type_id"]]["geometry"]))

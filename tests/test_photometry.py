@@ -349,6 +349,24 @@ def test_an_opening_wide_rather_than_long_keeps_its_axes(height):
     assert np.abs(wrong[0].ppfd - ref).max() > 0.15 * ref.max()
 
 
+def test_isotropic_file_sends_half_its_flux_down():
+    """An isotropic file (I0 in every direction, 0-180°): Φ = 4π I0, half of it below the horizon, and the PPFD
+    under it is I0/d² (inverse-square law), not twice that: the table is kept whole and the PPF is its whole flux."""
+    v = np.arange(0, 181, 5.0)
+    ph = parse_ies(ies_text(vertical=v, table=[[I0] * v.size], lumens=4 * np.pi * I0))
+    ftype, report = fixture_type_from(ph, type_id="iso", name="Isotropic", power_w=None, flux_unit="photon")
+    assert report["downward_share"] == pytest.approx(0.5, rel=1e-6)
+    assert report["upward_share"] == pytest.approx(0.5, rel=1e-6)
+    assert_allclose(ftype["ppf_umol_s"], 4 * np.pi * I0, rtol=1e-6)
+    t = FixtureType.model_validate(ftype)
+    t = t.model_copy(update={"geometry": t.geometry.model_copy(update={"kind": "point", "length_m": 0, "width_m": 0})})
+    g = Grid("g", -1, -1, 2, 2, 0.0, 0.25)
+    ppfd = compute_scene((emitter_for("F1", t, 0.0, 0.0, 1.5, 0.0, 100.0),), (g,), Enclosure(10, 10, 3))[0].ppfd
+    gx, gy = np.meshgrid(g.x_m, g.y_m)
+    d2 = gx**2 + gy**2 + 1.5**2
+    assert_allclose(ppfd, I0 * 1.5 / d2**1.5, rtol=2e-3)
+
+
 def test_declared_flux_that_disagrees_with_the_table_is_said(client):
     """The zonal integral of a Lambertian table is π·I0 (Lambert); a file declaring twice that is flagged, one
     declaring it within the rounding of its table is not."""

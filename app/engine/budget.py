@@ -16,6 +16,7 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
+from app.engine.aim import aim_matrix
 from app.engine.emitters import world_nodes
 from app.engine.scene import Box, Emitter, Enclosure, Grid
 
@@ -56,13 +57,18 @@ def _directions(emitter: Emitter, n: int, rng: np.random.Generator) -> np.ndarra
     if d.kind == "cosine_power":
         cos_t = (1.0 - xi) ** (1.0 / (d.exponent + 1.0))
     else:
-        # Tabulated: invert the polar CDF of the azimuth-averaged profile (fine enough for a budget).
-        theta = np.linspace(0, np.pi / 2, 2001)
+        # Tabulated: invert the polar CDF of the azimuth-averaged profile (fine enough for a budget), over
+        # the whole sphere: a table's upward light goes up, towards the ceiling.
+        theta = np.linspace(0, np.pi, 4001)
         prof = np.interp(theta, d.polar_rad, d.table_per_sr.mean(axis=0), right=0.0) * np.sin(theta)
         cdf = np.concatenate([[0], np.cumsum(0.5 * (prof[1:] + prof[:-1]) * np.diff(theta))])
         # The azimuthal structure of a table is not followed in the budget: φ stays uniform.
         cos_t = np.cos(np.interp(xi * cdf[-1], cdf, theta))
     sin_t = np.sqrt(np.maximum(1.0 - cos_t**2, 0.0))
+    if emitter.tilted:
+        # Drawn in the emitter's own frame, then turned into the room's (app/engine/aim.py).
+        local = np.column_stack([sin_t * np.cos(phi), sin_t * np.sin(phi), -cos_t])
+        return local @ aim_matrix(emitter.rotation_deg, emitter.tilt_deg, emitter.aim_deg).T
     a = phi + np.radians(emitter.rotation_deg)
     return np.column_stack([sin_t * np.cos(a), sin_t * np.sin(a), -cos_t])
 

@@ -119,7 +119,8 @@ def fixture_on_grid(
     if not lights_grid(emitter, grid, cover_m):
         return None, None
     direct = direct_patch(emitter, grid, boxes, reference_drop_m=ref_drop_m)
-    spec = specular_map(emitter, grid, enc, boxes) if enc.has_specular else None
+    mirrors = enc.has_specular or enc.mirror_reflectance("ceiling") > 0
+    spec = specular_map(emitter, grid, enc, boxes) if mirrors else None
     return direct, spec
 
 

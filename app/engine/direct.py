@@ -15,6 +15,7 @@ from dataclasses import dataclass, replace
 
 import numpy as np
 
+from app.engine.aim import aim_matrix, is_tilted, own_frame_angles
 from app.engine.cache import MIB, memoise
 from app.engine.distributions import Distribution, intensity_per_flux
 from app.engine.emitters import SHADOW_SUBDIVISION, world_nodes
@@ -50,8 +51,13 @@ def irradiance_from_nodes(
     dtype=np.float64,
     fold_m=(None, None),
     blocked_only: bool = False,
+    tilt_deg: float = 0.0,
+    aim_deg: float = 0.0,
 ) -> np.ndarray:
     """Irradiance [µmol m⁻² s⁻¹] at ``points`` (M, 3) from ``nodes`` (N, 3) of flux ``node_flux`` [µmol/s].
+
+    tilt_deg, aim_deg : the emitter's aim (app/engine/aim.py); the distribution is read in the emitter's own
+        frame (node-to-point vectors turned by the inverse aim rotation), the receiver cosine in the room's.
 
     normal : receiver normal, one for all points (3,) or one per point (M, 3).
     mirror : (±1, ±1) when the nodes are a mirror image, so that azimuths of a
@@ -68,13 +74,14 @@ def irradiance_from_nodes(
     step = max(1, CHUNK_ELEMENTS // max(nodes.shape[0], 1))
     upward = normal.ndim == 1 and normal[0] == 0 and normal[1] == 0 and normal[2] == 1
     rot = np.radians(rotation_deg)
+    frame = aim_matrix(rotation_deg, tilt_deg, aim_deg) if is_tilted(tilt_deg) else None
     for a in range(0, m, step):
         p = points[a : a + step]
         dx = p[None, :, 0] - nodes[:, None, 0]
         dy = p[None, :, 1] - nodes[:, None, 1]
         dz = nodes[:, None, 2] - p[None, :, 2]  # > 0 when the node is above the point
         r2 = dx * dx + dy * dy + dz * dz
-        if upward and dist.kind == "cosine_power":
+        if upward and dist.kind == "cosine_power" and frame is None:
             # E = (n+1)/(2π) · Δz^(n+1) / d^(n+3): one power, no square root (Lambertian: (Δz/d²)²/π).
             dzp = np.maximum(dz, 0.0)
             n = dist.exponent
@@ -90,13 +97,17 @@ def irradiance_from_nodes(
             continue
         r = np.sqrt(r2)
         cos_t = dz / r
-        if dist.kind == "tabulated":
+        if frame is not None:
+            # A mirror image's ray left the real emitter along the mirrored vector: read that in its frame.
+            cos_own, phi = own_frame_angles(mirror[0] * dx, mirror[1] * dy, -dz, r, frame)
+            ipf = intensity_per_flux(dist, cos_own, phi)
+        elif dist.kind == "tabulated":
             phi = np.arctan2(mirror[1] * dy, mirror[0] * dx) - rot
             ipf = intensity_per_flux(dist, cos_t, phi)
         else:
             ipf = intensity_per_flux(dist, cos_t)
         if upward:
-            cos_r = cos_t
+            cos_r = np.maximum(cos_t, 0.0)  # light from below never reaches a level, upward receiver
         else:
             nn = normal if normal.ndim == 1 else normal[a : a + step][None, :, :]
             nx, ny, nz = (nn[..., 0], nn[..., 1], nn[..., 2])
@@ -108,17 +119,26 @@ def irradiance_from_nodes(
     return out
 
 
+def aim_of(emitter: Emitter) -> dict:
+    """The emitter's aim as keyword arguments of irradiance_from_nodes."""
+    return {"tilt_deg": emitter.tilt_deg, "aim_deg": emitter.aim_deg}
+
+
 def _shade(e, nodes, p, boxes, fold_m, blocked_only: bool):
     hit = blocked(nodes, p, boxes, fold_m)
     return np.where(hit, e, 0.0) if blocked_only else np.where(hit, 0.0, e)
 
 
-def cull_radius_m(dist: Distribution, drop_m: float, relative: float = CULL_RELATIVE) -> float:
+def cull_radius_m(dist: Distribution, drop_m: float, relative: float = CULL_RELATIVE, tilted: bool = False) -> float:
     """Horizontal distance beyond which a point emitter's irradiance is below ``relative`` × its peak.
 
-    E(r)/E(0) = [I(θ)/I(0)] cos³θ with tan θ = r / Δz.
+    E(r)/E(0) = [I(θ)/I(0)] cos³θ with tan θ = r / Δz. A tilted emitter is bounded as if isotropic at
+    its largest intensity: E ≤ I_max cos³θ / Δz², so beyond cos θ = relative^(1/3) it gives less than
+    ``relative`` × I_max / Δz² (conservative: a wider window than it needs).
     """
-    if dist.kind == "cosine_power":
+    if tilted:
+        cos_cut = relative ** (1.0 / 3.0)
+    elif dist.kind == "cosine_power":
         cos_cut = relative ** (1.0 / (dist.exponent + 3.0))
     else:
         theta = np.linspace(0, np.pi / 2, 901)
@@ -189,7 +209,9 @@ def _stamp(local: Emitter, spacing_m: float, ia: int, ib: int, ja: int, jb: int,
     gx, gy = np.meshgrid(spacing_m * np.arange(ia, ib), spacing_m * np.arange(ja, jb))
     pts = np.column_stack([gx.ravel(), gy.ravel(), np.zeros(gx.size)])
     nodes, flux = world_nodes(local, local.z_m)
-    e = irradiance_from_nodes(pts, nodes, flux, local.distribution, local.rotation_deg, dtype=np.dtype(dtype_name))
+    e = irradiance_from_nodes(
+        pts, nodes, flux, local.distribution, local.rotation_deg, dtype=np.dtype(dtype_name), **aim_of(local)
+    )
     e = e.reshape(gx.shape)
     e.setflags(write=False)
     return e
@@ -214,7 +236,7 @@ def direct_patch(
     relative = CULL_RELATIVE * (dz / min(reference_drop_m or dz, dz)) ** 2
     if relative >= 1.0:
         return None
-    reach = cull_radius_m(emitter.distribution, dz, relative) + 0.5 * emitter.largest_dimension_m
+    reach = cull_radius_m(emitter.distribution, dz, relative, emitter.tilted) + 0.5 * emitter.largest_dimension_m
     xs, ys = grid.x_m, grid.y_m
     i0, i1 = _window(xs, emitter.x_m - reach, emitter.x_m + reach)
     j0, j1 = _window(ys, emitter.y_m - reach, emitter.y_m + reach)
@@ -286,6 +308,7 @@ def relight_shadowed(
             boxes=boxes,
             mirror=mirror,
             fold_m=fold,
+            **aim_of(emitter),
         )
     elif idx.size:
         values[idx] = shadowed_irradiance(

@@ -1,8 +1,10 @@
-"""Angular intensity distributions of downward-facing emitters.
+"""Angular intensity distributions of emitters, in each emitter's own frame.
 
 Every distribution is expressed as intensity per unit flux, ``I(θ, φ) / Φ``
-[sr⁻¹], with θ the angle from nadir and φ the azimuth in the emitter's own
-frame, so that ∫∫ I dΩ = Φ exactly (or to the quadrature tolerance for a table).
+[sr⁻¹], with θ the angle from the emitter's own nadir (its aim axis) and φ the
+azimuth in the emitter's own frame, so that ∫∫ I dΩ = Φ over the whole sphere
+exactly (or to the quadrature tolerance for a table). A cosⁿ beam sends all its
+flux into its lower hemisphere (θ < 90°); a table sends there only its own share.
 
 References
 ----------
@@ -22,7 +24,7 @@ import numpy as np
 
 @dataclass(frozen=True)
 class Distribution:
-    """A downward intensity distribution; compare and hash by ``key``.
+    """An intensity distribution in the emitter's frame; compare and hash by ``key``.
 
     kind : 'cosine_power' (Lambertian is exponent 1) or 'tabulated'.
     exponent : n of the cosⁿ beam.
@@ -92,13 +94,17 @@ def _table_key(polar_rad, azimuth_rad, table) -> str:
 
 
 def tabulated(polar_deg, azimuth_deg, relative_intensity, key: str = "") -> Distribution:
-    """A distribution from a table of relative intensities, normalised to unit flux.
+    """A distribution from a table of relative intensities, normalised to unit flux over the whole sphere.
 
     The table covers azimuths in the emitter's frame over [0, 360) (one azimuth
-    means rotationally symmetric). Light above the horizon (θ > 90°) is dropped:
-    the engine models downward emitters. The normalisation integrates the same
-    bilinear interpolant that is later evaluated, on a fine midpoint grid, so a
-    table and its interpolation carry exactly the stated flux.
+    means rotationally symmetric) and polar angles from the emitter's nadir up to
+    at most 180° (0 beyond its last angle). Light above the emitter's horizon
+    (θ > 90°) is kept: the lower hemisphere carries only its true share of the
+    flux (an isotropic table sends half of it down), and the rest lights the
+    walls and ceiling or, on a tilted fixture, whatever it is aimed at. The
+    normalisation integrates the same bilinear interpolant that is later
+    evaluated, on a fine midpoint grid, so a table and its interpolation carry
+    exactly the stated flux.
     """
     polar = np.radians(np.asarray(polar_deg, dtype=float))
     azim = np.radians(np.asarray(azimuth_deg, dtype=float))
@@ -109,10 +115,9 @@ def tabulated(polar_deg, azimuth_deg, relative_intensity, key: str = "") -> Dist
         raise ValueError("intensities must be finite and >= 0")
     if azim.size > 1 and np.isclose(azim[-1] - azim[0], 2 * np.pi):
         azim, table = azim[:-1], table[:-1]  # 360° repeats 0°
-    table = np.where(polar[None, :] <= np.pi / 2 + 1e-12, table, 0.0)
     total = zonal_flux(polar, azim, table)
     if total <= 0:
-        raise ValueError("the table emits no light below the horizon")
+        raise ValueError("the table emits no light")
     return Distribution(
         kind="tabulated",
         key=key or _table_key(polar, azim, table),
@@ -122,13 +127,18 @@ def tabulated(polar_deg, azimuth_deg, relative_intensity, key: str = "") -> Dist
     )
 
 
-def zonal_flux(polar_rad, azimuth_rad, table, n_theta: int = 720, n_phi: int = 360) -> float:
-    """∫∫ I(θ, φ) sin θ dθ dφ of the bilinear interpolant, by the midpoint rule.
+def zonal_flux(polar_rad, azimuth_rad, table, n_theta: int = 720, n_phi: int = 360, upper_rad: float = np.pi) -> float:
+    """∫∫ I(θ, φ) sin θ dθ dφ of the bilinear interpolant over θ ≤ ``upper_rad``, by the midpoint rule.
 
     With one azimuth (rotational symmetry) this is the zonal method over fine
-    zones: Φ = Σ I(θ_mid) 2π (cos θ₁ − cos θ₂).
+    zones: Φ = Σ I(θ_mid) 2π (cos θ₁ − cos θ₂). ``upper_rad`` = π/2 gives the
+    flux of the lower hemisphere alone.
     """
-    edges = np.linspace(0.0, min(np.pi / 2, float(np.max(polar_rad))), n_theta + 1)
+    top = min(float(upper_rad), float(np.max(polar_rad)))
+    if top <= 0:
+        return 0.0
+    n_theta = max(1, int(np.ceil(n_theta * top / (np.pi / 2))))  # zones as fine as 1/8° whatever the range
+    edges = np.linspace(0.0, top, n_theta + 1)
     mids = 0.5 * (edges[1:] + edges[:-1])
     zone_sr = 2.0 * np.pi * (np.cos(edges[:-1]) - np.cos(edges[1:]))
     if np.asarray(azimuth_rad).size == 1:
@@ -138,8 +148,26 @@ def zonal_flux(polar_rad, azimuth_rad, table, n_theta: int = 720, n_phi: int = 3
     return float(np.sum(vals.mean(axis=0) * zone_sr))
 
 
+def downward_share(dist: Distribution) -> float:
+    """Share of the flux sent into the emitter's lower hemisphere (θ < 90°): 1 for a cosⁿ beam."""
+    if dist.kind == "cosine_power":
+        return 1.0
+    return zonal_flux(dist.polar_rad, dist.azimuth_rad, dist.table_per_sr, upper_rad=np.pi / 2)
+
+
+def sends_upward(dist: Distribution) -> bool:
+    """Whether any light leaves above the emitter's horizon (θ > 90°): never for a cosⁿ beam."""
+    if dist.kind == "cosine_power":
+        return False
+    polar = dist.polar_rad
+    return bool(polar.max() > np.pi / 2 + 1e-12 and np.any(dist.table_per_sr[:, polar >= np.pi / 2 - 1e-12] > 0))
+
+
 def intensity_per_flux(dist: Distribution, cos_theta, phi=0.0):
-    """I(θ, φ)/Φ [sr⁻¹] for directions with cos θ = ``cos_theta`` below the emitter; 0 above."""
+    """I(θ, φ)/Φ [sr⁻¹] in the direction with cos θ = ``cos_theta`` from the emitter's nadir.
+
+    A cosⁿ beam gives 0 above its horizon (cos θ < 0); a table gives what it holds there.
+    """
     c = np.asarray(cos_theta)
     if dist.kind == "cosine_power":
         cc = np.maximum(c, 0.0)

@@ -13,6 +13,7 @@ from __future__ import annotations
 
 import numpy as np
 
+from app.engine.aim import aim_matrix
 from app.engine.scene import Emitter
 
 SEGMENT_PER_DISTANCE = 0.5
@@ -83,6 +84,11 @@ def local_nodes(
 def world_nodes(emitter: Emitter, nearest_m: float, shadowed: bool = False) -> tuple[np.ndarray, np.ndarray]:
     """Node positions (N, 3) in room coordinates and their flux [µmol/s] (N,)."""
     u, v, w = local_nodes(emitter, nearest_m, shadowed)
+    if emitter.tilted:
+        # The emitting face tilts with the fixture about its centre (app/engine/aim.py).
+        m = aim_matrix(emitter.rotation_deg, emitter.tilt_deg, emitter.aim_deg)
+        xyz = np.array([emitter.x_m, emitter.y_m, emitter.z_m]) + np.outer(u, m[:, 0]) + np.outer(v, m[:, 1])
+        return xyz, w * emitter.flux_umol_s
     a = np.radians(emitter.rotation_deg)
     c, s = np.cos(a), np.sin(a)
     xyz = np.column_stack([emitter.x_m + c * u - s * v, emitter.y_m + s * u + c * v, np.full(u.size, emitter.z_m)])

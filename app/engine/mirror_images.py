@@ -2,7 +2,8 @@
 
 A room 0..W × 0..L with vertical mirror walls (reflective film, polished metal) unfolds into a lattice of
 mirrored rooms, and the image of a source in cell (i, j) carries the product of the reflectances of the walls
-crossed. Downward emitters never light the ceiling, so the lattice is exact for vertical walls. Images are
+crossed. Light sent up (a tilted fixture, a table's upward share) to a mirror ceiling comes back from one more
+layer of images above the ceiling (ceiling_images); the floor is dark, so no higher order is needed. Images are
 summed until their peak contribution falls below ``IMAGE_RELATIVE`` of the real source's peak; near images are
 computed on the fine grid with full emitter quadrature, far ones on a coarse grid, bilinearly interpolated.
 Each surface has its own finish (Enclosure.surface): only mirror surfaces make images.
@@ -15,6 +16,7 @@ from dataclasses import replace
 import numpy as np
 
 from app.engine.direct import blocked, irradiance_from_nodes, nearest_distance_m, relight_shadowed
+from app.engine.distributions import sends_upward
 from app.engine.emitters import world_nodes
 from app.engine.penumbra import unit_irradiance
 from app.engine.scene import Box, Emitter, Enclosure, Grid
@@ -57,6 +59,8 @@ def image_list(emitter: Emitter, grid: Grid, enc: Enclosure) -> list[tuple[int, 
         return []
     dz = emitter.z_m - grid.z_m
     n = emitter.distribution.exponent if emitter.distribution.kind == "cosine_power" else 1.0
+    if emitter.tilted or sends_upward(emitter.distribution):
+        n = 0.0  # bounded as an isotropic source at its largest intensity (app/engine/direct.py cull_radius_m)
     k = np.arange(-MAX_IMAGE_ORDER, MAX_IMAGE_ORDER + 1)
     wx, wy = _axis_weights(k, rl, rr), _axis_weights(k, rf, rb)
     ki, kj = k[wx > IMAGE_RELATIVE], k[wy > IMAGE_RELATIVE]
@@ -72,6 +76,20 @@ def image_list(emitter: Emitter, grid: Grid, enc: Enclosure) -> list[tuple[int, 
     keep = (w * cos_t ** (n + 3.0) >= IMAGE_RELATIVE) & ~((ki[:, None] == 0) & (kj[None, :] == 0))
     ii, jj = np.nonzero(keep)
     return [(int(ki[a]), int(kj[b]), float(w[a, b])) for a, b in zip(ii, jj, strict=True)]
+
+
+def ceiling_images(emitter: Emitter, images: list[tuple[int, int, float]], enc: Enclosure) -> list:
+    """(i, j, weight) of the emitter's images in a mirror ceiling: one for the emitter and one for each of its
+    wall images, each times the ceiling's reflectance; none when it sends no light up.
+
+    The floor is dark, so light that the ceiling sends down ends on the canopy or the floor: one ceiling order
+    suffices. They are point sources on the coarse grid (they stand farther than 2 × the ceiling's height over
+    the fixture); boxes shade their downward leg, the part of the image's segment below the ceiling.
+    """
+    rho = enc.mirror_reflectance("ceiling")
+    if rho <= 0 or not (emitter.tilted or sends_upward(emitter.distribution)):
+        return []
+    return [(0, 0, rho)] + [(i, j, w * rho) for i, j, w in images]
 
 
 def _mirror_nodes(nodes: np.ndarray, i: int, j: int, enc: Enclosure) -> np.ndarray:
@@ -108,10 +126,11 @@ def _bilinear(xc, yc, vals, xf, yf):
 def specular_map(emitter: Emitter, grid: Grid, enc: Enclosure, boxes: tuple[Box, ...] = (), dtype=np.float32):
     """Irradiance [µmol m⁻² s⁻¹] on ``grid`` from the emitter's mirror images (shape ny × nx)."""
     out = np.zeros((grid.ny, grid.nx), dtype=dtype)
-    if not enc.has_specular or emitter.z_m <= grid.z_m:
+    if emitter.z_m <= grid.z_m:
         return out
     images = image_list(emitter, grid, enc)
-    if not images:
+    ceiling = ceiling_images(emitter, images, enc)
+    if not images and not ceiling:
         return out
     near_boxes = _boxes_between(boxes, grid.z_m, emitter.z_m)
     xs, ys = grid.x_m, grid.y_m
@@ -148,8 +167,10 @@ def specular_map(emitter: Emitter, grid: Grid, enc: Enclosure, boxes: tuple[Box,
             w * flux,
             emitter.distribution,
             emitter.rotation_deg,
-            mirror=mirror,
+            mirror=mirror,  # a mirrored image's aim is mirrored too: its rays are read in the real frame
             dtype=dtype,
+            tilt_deg=emitter.tilt_deg,
+            aim_deg=emitter.aim_deg,
         ).reshape(sgy.shape)
         if near_boxes:
             # The light the boxes (and their mirror copies) take away, on the same samples: an image's
@@ -170,6 +191,8 @@ def specular_map(emitter: Emitter, grid: Grid, enc: Enclosure, boxes: tuple[Box,
             e = lit.reshape(e.shape).astype(dtype)
         e = e if step == 1 else _bilinear(sx, sy, e, xs, ys).astype(dtype)
         out += np.maximum(e, 0.0)
+    for i, j, w in ceiling:
+        far.setdefault((-1.0 if i % 2 else 1.0, -1.0 if j % 2 else 1.0, -1.0), []).append((i, j, w))
     # The far images of one mirror parity form one batch of point sources; their shadows fold the
     # segments back into the room (app/engine/shadows.py), so boxes cost what the segments cross.
     far_sum += _far_images(emitter, coarse, far, enc, near_boxes)
@@ -192,19 +215,27 @@ def _far_images(emitter: Emitter, points: np.ndarray, far: dict, enc: Enclosure,
     ii = np.concatenate([[g[0] for g in grp] for _, grp in groups])
     jj = np.concatenate([[g[1] for g in grp] for _, grp in groups])
     ww = np.concatenate([[g[2] for g in grp] for _, grp in groups]) * emitter.flux_umol_s
+    # Images in a mirror ceiling stand as far above it as the emitter is below it.
+    zz = np.concatenate(
+        [np.full(len(grp), emitter.z_m if len(m) < 3 else 2 * enc.height_m - emitter.z_m) for m, grp in groups]
+    )
     nodes = np.column_stack(
-        [
-            mirror_coordinate(emitter.x_m, ii, enc.width_m),
-            mirror_coordinate(emitter.y_m, jj, enc.length_m),
-            np.full(ii.size, emitter.z_m),
-        ]
+        [mirror_coordinate(emitter.x_m, ii, enc.width_m), mirror_coordinate(emitter.y_m, jj, enc.length_m), zz]
     )
     k = np.empty((ii.size, points.shape[0]))
     start = 0
     for m, grp in groups:
         sl = slice(start, start + len(grp))
         start += len(grp)
-        k[sl] = unit_irradiance(nodes[sl, None, :], points[None, :, :], emitter.distribution, emitter.rotation_deg, m)
+        k[sl] = unit_irradiance(
+            nodes[sl, None, :],
+            points[None, :, :],
+            emitter.distribution,
+            emitter.rotation_deg,
+            m,
+            emitter.tilt_deg,
+            emitter.aim_deg,
+        )
     if not boxes:
         return ww @ k
     tested = np.maximum(np.abs(ii), np.abs(jj)) <= SHADOW_TEST_ORDER

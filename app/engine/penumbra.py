@@ -22,6 +22,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from app.engine.aim import aim_matrix, is_tilted, own_frame_angles
 from app.engine.distributions import intensity_per_flux
 from app.engine.emitters import (
     _GL,
@@ -104,21 +105,30 @@ def emitter_cells(emitter: Emitter, nearest_m: float, subdivision: float = SHADO
     return Cells(centres, (hu, hv), weights, coarse, coarse_w, fine, fine_w)
 
 
-def unit_irradiance(q, p, dist, rotation_deg: float, mirror=(1.0, 1.0)) -> np.ndarray:
+def unit_irradiance(q, p, dist, rotation_deg: float, mirror=(1.0, 1.0), tilt_deg=0.0, aim_deg=0.0) -> np.ndarray:
     """Irradiance [µmol m⁻² s⁻¹] per µmol/s of a node at q on a level, upward point p (broadcast arrays (…, 3)).
 
-    Inverse-square and cosine laws: E = (I/Φ)(θ, φ) · cos θ / d² (cos θ = Δz / d at an upward receiver).
+    Inverse-square and cosine laws: E = (I/Φ)(θ, φ) · cos θ_r / d² (cos θ_r = Δz / d at an upward receiver),
+    θ and φ read in the emitter's own frame (app/engine/aim.py).
     """
     dx, dy = p[..., 0] - q[..., 0], p[..., 1] - q[..., 1]
     dz = q[..., 2] - p[..., 2]
     r2 = dx * dx + dy * dy + dz * dz
+    mz = mirror[2] if len(mirror) > 2 else 1.0  # -1: an image in a mirror ceiling, whose real ray went up
+    if is_tilted(tilt_deg):
+        r = np.sqrt(r2)
+        frame = aim_matrix(rotation_deg, tilt_deg, aim_deg)
+        cos_own, phi = own_frame_angles(mirror[0] * dx, mirror[1] * dy, -mz * dz, r, frame)
+        return intensity_per_flux(dist, cos_own, phi) * np.maximum(dz / r, 0.0) / r2
+    if dist.kind == "cosine_power" and mz < 0:
+        return np.zeros(np.broadcast_shapes(dx.shape, dz.shape))  # a level cosⁿ beam sends nothing up
     if dist.kind == "cosine_power":
         n = dist.exponent
         return (n + 1.0) / (2.0 * np.pi) * np.maximum(dz, 0.0) ** (n + 1.0) * r2 ** (-(n + 3.0) / 2.0)
     r = np.sqrt(r2)
     cos_t = dz / r
     phi = np.arctan2(mirror[1] * dy, mirror[0] * dx) - np.radians(rotation_deg)
-    return intensity_per_flux(dist, cos_t, phi) * cos_t / r2
+    return intensity_per_flux(dist, mz * cos_t, phi) * np.maximum(cos_t, 0.0) / r2
 
 
 @dataclass(frozen=True)
@@ -138,17 +148,17 @@ class _Extent:
 
 
 def _to_world(uv: np.ndarray, emitter: Emitter, cell=(0, 0), room_m=(None, None)) -> np.ndarray:
-    """Emitter-frame offsets (…, 2) to room (or mirror-image) coordinates (…, 3)."""
-    a = np.radians(emitter.rotation_deg)
-    c, s = np.cos(a), np.sin(a)
-    x = emitter.x_m + c * uv[..., 0] - s * uv[..., 1]
-    y = emitter.y_m + s * uv[..., 0] + c * uv[..., 1]
+    """Emitter-frame offsets (…, 2) to room (or mirror-image) coordinates (…, 3); a tilted face tilts with them."""
+    m = aim_matrix(emitter.rotation_deg, emitter.tilt_deg, emitter.aim_deg)
+    x = emitter.x_m + m[0, 0] * uv[..., 0] + m[0, 1] * uv[..., 1]
+    y = emitter.y_m + m[1, 0] * uv[..., 0] + m[1, 1] * uv[..., 1]
+    z = emitter.z_m + m[2, 0] * uv[..., 0] + m[2, 1] * uv[..., 1]
     for k, (i, size) in enumerate(zip(cell, room_m, strict=True)):
         if i:
             u = x if k == 0 else y
             u = i * size + (u if i % 2 == 0 else size - u)
             x, y = (u, y) if k == 0 else (x, u)
-    return np.stack([x, y, np.full(x.shape, emitter.z_m)], axis=-1)
+    return np.stack([x, y, z], axis=-1)
 
 
 def shadowed_irradiance(
@@ -170,10 +180,11 @@ def shadowed_irradiance(
     """
     points = np.asarray(points, dtype=np.float64)
     fold = room_m if any(cell) or room_m != (None, None) else (None, None)
+    aim = (emitter.tilt_deg, emitter.aim_deg)
     point_like = emitter.shape == "point" or nearest_m > POINT_BEYOND_SIZES * emitter.largest_dimension_m
     if point_like:
         q = _to_world(np.zeros((1, 2)), emitter, cell, room_m)
-        e = unit_irradiance(q[:, None, :], points[None, :, :], emitter.distribution, emitter.rotation_deg, mirror)
+        e = unit_irradiance(q[:, None, :], points[None, :, :], emitter.distribution, emitter.rotation_deg, mirror, *aim)
         e = np.where(boxes_blocked(q, points, boxes, fold), 0.0, e)
         return flux_umol_s * e[0]
     cells = emitter_cells(emitter, nearest_m, subdivision)
@@ -188,8 +199,9 @@ def _shadowed_chunk(p, emitter, cells, boxes, cell, room_m, fold, mirror):
     dist, rot = emitter.distribution, emitter.rotation_deg
     hu, hv = cells.half_uv
     centres = _to_world(cells.centres_uv, emitter, cell, room_m)  # (C, 3)
-    a = np.radians(rot)
-    half = (abs(np.cos(a)) * hu + abs(np.sin(a)) * hv, abs(np.sin(a)) * hu + abs(np.cos(a)) * hv, 0.0)
+    m = np.abs(aim_matrix(rot, emitter.tilt_deg, emitter.aim_deg))
+    half = tuple(float(m[k, 0] * hu + m[k, 1] * hv) for k in range(3))  # the turned (and tilted) cell's half-box
+    aim = (emitter.tilt_deg, emitter.aim_deg)
     corner_uv = np.array([[-hu, -hv], [-hu, hv], [hu, -hv], [hu, hv]])
     corners = _to_world(cells.centres_uv[:, None, :] + corner_uv[None, :, :], emitter, cell, room_m).reshape(-1, 3)
     # Each convex box copy on its own: the cells it may shade, and those it hides whole (four corners hidden).
@@ -220,14 +232,14 @@ def _shadowed_chunk(p, emitter, cells, boxes, cell, room_m, fold, mirror):
             hidden[ci, mi] |= _slab(corners[ci], p[mi][:, None, :], *lo_hi).all(axis=1)
     # Open-air value of every cell (its coarse nodes), then the hidden ones dropped and the edge cells redone.
     nodes = _to_world(cells.centres_uv[:, None, :] + cells.coarse_uv[None, :, :], emitter, cell, room_m)
-    k = unit_irradiance(nodes[:, :, None, :], p[None, None, :, :], dist, rot, mirror)  # (C, G, M)
+    k = unit_irradiance(nodes[:, :, None, :], p[None, None, :, :], dist, rot, mirror, *aim)  # (C, G, M)
     per_cell = np.einsum("cgm,g->cm", k, cells.coarse_w)
     lit = np.where(may, 0.0, per_cell)
     ci, mi = np.nonzero(may & ~hidden)
     if ci.size:
         fine = _to_world(cells.centres_uv[ci][:, None, :] + cells.fine_uv[None, :, :], emitter, cell, room_m)
         pe = p[mi][:, None, :]
-        kf = unit_irradiance(fine, pe, dist, rot, mirror)  # (P, K)
+        kf = unit_irradiance(fine, pe, dist, rot, mirror, *aim)  # (P, K)
         blk = np.zeros(kf.shape, dtype=bool)
         for lo_hi, folded, may_c in copies:
             sel = np.nonzero(may_c[ci, mi])[0]

@@ -16,6 +16,7 @@ import numpy as np
 
 from app.engine.cache import MIB, memoise
 from app.engine.direct import blocked, irradiance_from_nodes
+from app.engine.distributions import sends_upward
 from app.engine.emitters import world_nodes
 from app.engine.formfactors import axis_element_to_axis_rectangles
 from app.engine.mirror_images import IMAGE_RELATIVE, _axis_weights, _mirror_nodes
@@ -130,7 +131,10 @@ def patch_irradiance(
 ) -> np.ndarray:
     """Direct irradiance [µmol m⁻² s⁻¹] of one emitter on every wall and ceiling patch (mean of its samples)."""
     p = wall_patches(enc, cuts_m)
-    walls = p.normals[:, 2] > -0.5  # walls and floor; downward emitters leave the ceiling dark
+    # The ceiling is lit by the same kernel whenever the emitter sends light upward (tilted, or a table
+    # with upward light); an emitter that sends all its light below its horizon, hung level, leaves it dark.
+    lights_ceiling = emitter.tilted or sends_upward(emitter.distribution)
+    walls = np.ones(len(p.areas), dtype=bool) if lights_ceiling else p.normals[:, 2] > -0.5
     e = np.zeros(len(p.areas))
     if not np.any(walls):
         return e
@@ -150,6 +154,8 @@ def patch_irradiance(
             boxes=boxes,
             mirror=(-1.0 if i % 2 else 1.0, -1.0 if j % 2 else 1.0),
             fold_m=(enc.width_m, enc.length_m) if (i or j) else (None, None),
+            tilt_deg=emitter.tilt_deg,
+            aim_deg=emitter.aim_deg,
         )
     e[walls] = e_sub.reshape(-1, PATCH_SAMPLES**2).mean(axis=1)
     return e

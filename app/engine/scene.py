@@ -11,12 +11,15 @@ from app.engine.distributions import Distribution
 
 @dataclass(frozen=True)
 class Emitter:
-    """A downward-facing fixture. (x_m, y_m, z_m) is the centre of its emitting face.
+    """A fixture. (x_m, y_m, z_m) is the centre of its emitting face.
 
     shape : 'point', 'bar', 'bar_array' or 'panel'.
     length_m : along the emitter's local x axis; width_m along its local y axis.
     bar_count, bar_width_m : for 'bar_array', bars spread evenly across width_m.
     flux_umol_s : photons emitted, after dimming [µmol/s].
+    rotation_deg : turn about the vertical, counter-clockwise.
+    tilt_deg, aim_deg : the nadir tilted by tilt_deg (0 down, 90 level, 180 up) toward compass direction
+        aim_deg in the room's x-y frame (app/engine/aim.py); aim_deg means nothing when tilt_deg is 0.
     """
 
     id: str
@@ -31,6 +34,12 @@ class Emitter:
     bar_count: int = 1
     bar_width_m: float = 0.0
     rotation_deg: float = 0.0
+    tilt_deg: float = 0.0
+    aim_deg: float = 0.0
+
+    @property
+    def tilted(self) -> bool:
+        return self.tilt_deg != 0.0
 
     def __hash__(self) -> int:
         # Emitters key every memoised contribution; hash the fields once, not on every lookup.

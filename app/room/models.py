@@ -116,7 +116,8 @@ class Geometry(Strict):
 
 
 class Beam(Strict):
-    """Angular intensity distribution, facing straight down."""
+    """Angular intensity distribution in the fixture's own frame (polar angle from its nadir); the fixture's
+    tilt_deg and aim_deg say where that nadir points in the room."""
 
     kind: Literal["lambertian", "cosine_power", "tabulated"]
     beam_angle_deg: float | None = Field(
@@ -187,6 +188,15 @@ class Fixture(Strict):
     y_m: Metres
     hanging_height_m: PositiveMetres = Field(description="Height of the emitting face above the floor.")
     rotation_deg: float = Field(default=0.0, ge=0, lt=360, description="About the vertical, counter-clockwise.")
+    tilt_deg: float = Field(
+        default=0.0, ge=0, le=180, description="Aim away from straight down: 0 down, 90 sideways, 180 straight up."
+    )
+    aim_deg: float = Field(
+        default=0.0,
+        ge=0,
+        lt=360,
+        description="Compass direction the tilt leans toward, in the room's x-y frame, counter-clockwise from +x.",
+    )
     dimming_pct: float = Field(default=100.0, ge=10, le=100)
     on: bool = True
     circuit: str = Field(default="A", min_length=1, max_length=40)

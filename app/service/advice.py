@@ -24,7 +24,7 @@ from app.room.consistency import consistency_problems
 from app.room.library import crops_for
 from app.room.models import CanopyZone, Fixture, FixtureType, Room, RoomFile
 from app.service.maintained import factor_for
-from app.service.scene_builder import build_scene, emitter_for
+from app.service.scene_builder import aim_fields, build_scene, emitter_for
 from app.service.verdict import dark_allowance, zone_result_verdict, zone_verdict
 
 ZONE_CODES = ("dark_zone", "hot_spot", "over_target")
@@ -120,6 +120,7 @@ def _emitters(room: Room, fixtures, dimming_pct: float | None = None, dz_m: floa
             f.rotation_deg,
             f.dimming_pct if dimming_pct is None else dimming_pct,
             factor_for(room, types[f.type_id]),
+            **aim_fields(f),
         )
         for f in fixtures
         if f.on

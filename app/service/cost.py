@@ -98,7 +98,7 @@ def _direct_terms(e: Emitter, g: Grid, boxes, ref_drop: float | None, units: dic
     relative = CULL_RELATIVE * (dz / min(ref_drop or dz, dz)) ** 2
     if dz <= 0 or relative >= 1.0:
         return
-    reach = cull_radius_m(e.distribution, dz, relative) + 0.5 * e.largest_dimension_m
+    reach = cull_radius_m(e.distribution, dz, relative, e.tilted) + 0.5 * e.largest_dimension_m
     pts = _window_points(e, g, reach)
     if pts == 0:
         return
@@ -120,6 +120,8 @@ def _direct_terms(e: Emitter, g: Grid, boxes, ref_drop: float | None, units: dic
         e.bar_width_m,
         e.flux_umol_s,
         e.rotation_deg,
+        e.tilt_deg,
+        e.aim_deg,
         id(e.distribution),
         round(dz, 9),
         round(u - math.floor(u), 6),

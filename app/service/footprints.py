@@ -18,7 +18,7 @@ from app.engine.direct import cull_radius_m, direct_patch
 from app.engine.scene import Grid
 from app.room.layout import fixture_zones
 from app.room.models import Room
-from app.service.scene_builder import emitter_for
+from app.service.scene_builder import aim_fields, emitter_for
 
 MAX_RADIUS_CELLS = 150  # a 301 x 301 stamp at most (2.4 MB of float64, about 0.6 MB of JSON)
 
@@ -29,13 +29,20 @@ def footprint(room: Room, fixture_id: str) -> dict[str, Any]:
     zone_id = fixture_zones(room.zones, room.fixtures).get(f.id)
     zone = next((z for z in room.zones if z.id == zone_id), None)
     t = next(tt for tt in room.fixture_types if tt.id == f.type_id)
-    base = {"fixture_id": f.id, "zone_id": zone_id, "type_id": t.id, "rotation_deg": f.rotation_deg}
+    base = {
+        "fixture_id": f.id,
+        "zone_id": zone_id,
+        "type_id": t.id,
+        "rotation_deg": f.rotation_deg,
+        "tilt_deg": f.tilt_deg,
+        "aim_deg": f.aim_deg,
+    }
     if zone is None:
         return {**base, "above_canopy_m": None, "spacing_m": room.grid_spacing_m, "radius_cells": 0, "ppfd": None}
     drop_m = f.hanging_height_m - zone.canopy_height_m
-    e = emitter_for(f.id, t, f.x_m, f.y_m, f.hanging_height_m, f.rotation_deg, 100.0)
+    e = emitter_for(f.id, t, f.x_m, f.y_m, f.hanging_height_m, f.rotation_deg, 100.0, **aim_fields(f))
     s = room.grid_spacing_m
-    reach_m = cull_radius_m(e.distribution, drop_m) + 0.5 * e.largest_dimension_m
+    reach_m = cull_radius_m(e.distribution, drop_m, tilted=e.tilted) + 0.5 * e.largest_dimension_m
     r = min(int(math.ceil(reach_m / s)), MAX_RADIUS_CELLS)
     # Points x - r·s ... x + r·s: the grid's own centring puts its middle point under the fixture.
     grid = Grid("footprint", f.x_m - r * s, f.y_m - r * s, 2 * r * s, 2 * r * s, zone.canopy_height_m, s)

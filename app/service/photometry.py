@@ -44,13 +44,14 @@ def fixture_type_from(
 ) -> tuple[dict, dict]:
     """A fixture type (as room-file JSON) and a report of the conversion.
 
-    The engine models downward light, so the fixture's PPF is the photon flux
-    below the horizon; the upward share is reported.
+    The fixture's PPF is the table's whole photon flux and the table is kept whole: the engine sends the
+    downward share to the canopy and the upward share to the walls and ceiling (app/engine/distributions.py).
+    Both shares are reported.
     """
     total = ph.zonal_flux
     down = ph.downward_flux
-    if down <= 0:
-        raise PhotometryError("the table sends no light downward")
+    if total <= 0:
+        raise PhotometryError("the table sends no light")
     if flux_unit == "photon":
         factor = 1.0
     elif umol_per_lumen and umol_per_lumen > 0:
@@ -59,16 +60,12 @@ def fixture_type_from(
         raise PhotometryError(
             "a file in lumens needs a µmol-per-lumen factor: give the fixture's spectrum or the factor"
         )
-    ppf = down * factor
+    ppf = total * factor
     power = power_w or ph.input_watts
     if not power:
         raise PhotometryError("the file gives no input watts: enter the fixture's power")
-    keep = [i for i, a in enumerate(ph.polar_deg) if a <= 90.0 + 1e-9]
-    polar = [ph.polar_deg[i] for i in keep]
-    table = [[max(r[i], 0.0) for i in keep] for r in ph.candela]
-    if polar[-1] < 90:  # close the table at the horizon
-        polar.append(90.0)
-        table = [[*r, 0.0] for r in table]
+    polar = list(ph.polar_deg)
+    table = [[max(v, 0.0) for v in r] for r in ph.candela]
     # LM-63 (and EULUMDAT) give the opening's length along the C0-C180 photometric axis and its width along
     # C90-C270; the engine's local x is azimuth 0, so the length goes there even when it is the shorter side
     # (laying the longer side along x would turn the opening 90 deg against its own candela table).
@@ -91,6 +88,7 @@ def fixture_type_from(
         "zonal_flux": total,
         "downward_flux": down,
         "upward_share": 1 - down / total if total > 0 else 0.0,
+        "downward_share": down / total if total > 0 else 0.0,
         "declared_flux": ph.declared_flux,
         "zonal_over_declared": total / ph.declared_flux if ph.declared_flux else None,
         "flux_unit": flux_unit,

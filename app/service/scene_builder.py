@@ -48,6 +48,9 @@ def emitter_for(
     rotation_deg: float,
     dimming_pct: float,
     output_factor: float = 1.0,
+    *,
+    tilt_deg: float = 0.0,
+    aim_deg: float = 0.0,
 ) -> Emitter:
     g = t.geometry
     return Emitter(
@@ -63,7 +66,15 @@ def emitter_for(
         bar_count=g.bar_count,
         bar_width_m=g.bar_width_m,
         rotation_deg=rotation_deg,
+        tilt_deg=float(tilt_deg),
+        # The aim means nothing on a level fixture: 0 there, so level fixtures share footprints whatever it says.
+        aim_deg=float(aim_deg) if tilt_deg else 0.0,
     )
+
+
+def aim_fields(fixture) -> dict[str, float]:
+    """A room fixture's tilt and aim as keyword arguments of emitter_for."""
+    return {"tilt_deg": fixture.tilt_deg, "aim_deg": fixture.aim_deg}
 
 
 def zone_grid(zone: CanopyZone, spacing_m: float) -> Grid:
@@ -93,6 +104,7 @@ def build_scene(room: Room, dimming_pct: float | None = None) -> EngineScene:
             f.rotation_deg,
             f.dimming_pct if dimming_pct is None else dimming_pct,
             factors[f.type_id],
+            **aim_fields(f),
         )
         for f in room.fixtures
         if f.on

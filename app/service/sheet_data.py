@@ -145,7 +145,8 @@ def fixtures_to_hang(room: Room) -> list[dict[str, Any]]:
                 "tier": tier_of.get(f.id),
                 "from_left": format_length(f.x_m, u, True),
                 "from_front": format_length(f.y_m, u, True),
-                "rotation": f"{fmt_number(f.rotation_deg, 0)}°",
+                "rotation": f"{fmt_number(f.rotation_deg, 0)}°"
+                + (f", tilted {fmt_number(f.tilt_deg, 0)}° toward {fmt_number(f.aim_deg, 0)}°" if f.tilt_deg else ""),
                 "height": format_length(f.hanging_height_m, u, True),
                 "above_canopy": format_length(f.hanging_height_m - top.canopy_height_m, u, True) if top else "–",
                 "zone_name": zones[top.id].name if top else "",

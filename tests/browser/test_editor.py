@@ -225,3 +225,27 @@ def test_drag_preview_is_composed_in_the_browser_from_footprints(live_server, pa
     assert abs(preview_mean - exact) < 0.03 * exact, (preview_mean, exact)
     assert page.evaluate("() => document.getElementById('map-preview').style.display") == "none"
     assert page.errors == []
+
+
+def test_tilt_and_aim_fields_edit_the_fixture(live_server, page):
+    room = fresh_room(live_server, name="Tilt test tent")
+    before = api(live_server, f"/api/rooms/{room}")
+    page.goto(f"{live_server}/rooms/{room}")
+    wait_analysis_idle(page)
+    avg0 = shown_avg(page)
+    page.locator('[data-fixture-id="F1"]').click()
+    assert page.locator("#f-tilt").input_value() == "0" and page.locator("#f-aim").is_disabled()
+    page.fill("#f-tilt", "200")
+    page.locator("#f-tilt").dispatch_event("change")
+    assert "tilt must be between 0 and 180" in page.locator("#sel-fields").inner_text()
+    page.fill("#f-tilt", "180")
+    page.locator("#f-tilt").dispatch_event("change")
+    rev = wait_saved(page, before["revision"])
+    page.fill("#f-aim", "90")
+    page.locator("#f-aim").dispatch_event("change")
+    wait_saved(page, rev)
+    f1 = api(live_server, f"/api/rooms/{room}")["room"]["fixtures"][0]
+    assert (f1["tilt_deg"], f1["aim_deg"]) == (180, 90)
+    # Facing the ceiling, that fixture's light reaches the canopy only by way of the tent's walls and ceiling.
+    wait_analysis_idle(page)
+    assert shown_avg(page) < avg0

@@ -14,7 +14,7 @@ from app.room.library import crops_for
 from app.room.models import RoomFile
 from app.service.analysis import zone_photoperiod_h
 from app.service.maintained import factor_for
-from app.service.scene_builder import build_scene, emitter_for, zone_grid
+from app.service.scene_builder import aim_fields, build_scene, emitter_for, zone_grid
 
 CURVE_POINTS_PER_SIDE = 60
 LOWEST_ABOVE_CANOPY_M = 0.1
@@ -58,6 +58,7 @@ def curves(rf: RoomFile, zone_id: str, fixture_ids: tuple[str, ...] = (), steps:
                 f.rotation_deg,
                 f.dimming_pct,
                 factor_for(room, types[f.type_id]),
+                **aim_fields(f),
             )
             for f in chosen
             if f.on
@@ -76,6 +77,7 @@ def curves(rf: RoomFile, zone_id: str, fixture_ids: tuple[str, ...] = (), steps:
                 f.rotation_deg,
                 100.0,
                 factor_for(room, types[f.type_id]),
+                **aim_fields(f),
             )
             for f in chosen
             if f.on

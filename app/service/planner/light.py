@@ -42,7 +42,8 @@ class PlanningLight:
         self.boxes = scene.boxes
         # Matt-wall light is blocked by every canopy, as in the analysis (the same radiosity operator).
         self.blockers = scene.boxes + canopy_slabs(scene.grids)
-        self.walls_return = scene.enclosure.has_specular or scene.enclosure.has_diffuse
+        mirror_ceiling = scene.enclosure.mirror_reflectance("ceiling") > 0  # returns a table's upward light
+        self.walls_return = scene.enclosure.has_specular or scene.enclosure.has_diffuse or mirror_ceiling
         self.cuts = tuple(sorted({round(g.z_m, 6) for g in scene.grids}))  # as compute_scene splits wall rows
         self.span = (min(heights_m), max(heights_m)) if heights_m else (0.0, 0.0)
         self._reference: dict[tuple, np.ndarray] = {}
@@ -91,7 +92,7 @@ class PlanningLight:
         if not self.walls_return or not emitters:
             return np.zeros_like(self.area)
         out = np.zeros_like(self.area)
-        if enc.has_specular:
+        if enc.has_specular or enc.mirror_reflectance("ceiling") > 0:
             out = out + sum(specular_map(e, self.grid, enc, self.boxes).astype(float) for e in emitters)
         if enc.has_diffuse:
             e_patch = sum(patch_irradiance(e, enc, self.blockers, self.cuts) for e in emitters)

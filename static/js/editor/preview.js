@@ -14,7 +14,7 @@ let drag = null;               // what the preview is composed from, set when a 
 let frame = 0;
 
 function keyOf(f, zone) {
-  return `${f.type_id}|${(f.hanging_height_m - zone.canopy_height_m).toFixed(4)}|${f.rotation_deg}`;
+  return `${f.type_id}|${(f.hanging_height_m - zone.canopy_height_m).toFixed(4)}|${f.rotation_deg}|${f.tilt_deg || 0}|${f.tilt_deg ? f.aim_deg || 0 : 0}`;
 }
 
 /** Ask the server for the footprints of these fixtures that are not at hand yet (ahead of a drag). */
@@ -31,7 +31,7 @@ export async function prefetch(ids) {
       const f = fixture(fp.fixture_id), zone = f && zoneOf(f);
       if (!zone || zone.id !== fp.zone_id) continue;
       const n = 2 * fp.radius_cells + 1;
-      stamps.set(`${fp.type_id}|${fp.above_canopy_m.toFixed(4)}|${fp.rotation_deg}`, { r: fp.radius_cells, n, values: Float64Array.from(fp.ppfd.flat()) });
+      stamps.set(`${fp.type_id}|${fp.above_canopy_m.toFixed(4)}|${fp.rotation_deg}|${fp.tilt_deg || 0}|${fp.tilt_deg ? fp.aim_deg || 0 : 0}`, { r: fp.radius_cells, n, values: Float64Array.from(fp.ppfd.flat()) });
     }
   } catch (err) {
     if (!isAbort(err)) { /* no preview then: the map follows the server's answers */ }

@@ -44,7 +44,8 @@ $("ph-read").addEventListener("click", () => {
       $("ph-report").innerHTML = `<table class="figures"><tbody>
         <tr><th scope="row">Total flux by the zonal method</th><td>${fmt(r.zonal_flux)} ${r.flux_unit === "photon" ? "µmol/s" : "lm"}</td></tr>
         <tr><th scope="row">Flux the file declares</th><td>${r.declared_flux ? fmt(r.declared_flux) : "none (absolute photometry)"}${r.zonal_over_declared ? ` · zonal/declared ${fmt(r.zonal_over_declared, 3)}` : ""}</td></tr>
-        <tr><th scope="row">Upward share (not modelled)</th><td>${fmt(100 * r.upward_share, 1)} %</td></tr>
+        <tr><th scope="row">Downward share (towards the canopy when hung level)</th><td>${fmt(100 * r.downward_share, 1)} %</td></tr>
+        <tr><th scope="row">Upward share (lights the walls and ceiling)</th><td>${fmt(100 * r.upward_share, 1)} %</td></tr>
         <tr><th scope="row">PPF of the fixture type</th><td>${fmt(r.ppf_umol_s)} µmol/s · ${fmt(r.umol_per_j, 2)} µmol/J</td></tr>
         <tr><th scope="row">Notes</th><td>${r.notes.map(esc).join("; ")}</td></tr></tbody></table>
         <ul class="warnings">${r.findings.map((x) => `<li class="${x.level}"><strong>${x.level}</strong> ${esc(x.message)}</li>`).join("")}</ul>`;

@@ -21,6 +21,13 @@ function fillPalette() {
 }
 
 const byId = (r, id) => r.fixtures.find((f) => f.id === id);
+// The room file's ranges (app/room/models.py Fixture): [low, high, name in the message].
+const NUMBER_FIELDS = {
+  dimming_pct: [10, 100, "dimming"],
+  rotation_deg: [0, 359.999, "rotation"],
+  tilt_deg: [0, 180, "tilt"],
+  aim_deg: [0, 359.999, "tilt direction"],
+};
 
 export function renderFixturePanel() {
   fillPalette();
@@ -38,7 +45,8 @@ export function renderFixturePanel() {
   for (const input of document.querySelectorAll("#sel-fields [data-length]")) setIfIdle(input, Units.lengthInput(f[input.dataset.length], u));
   setIfIdle($("f-hc"), z ? Units.lengthInput(f.hanging_height_m - z.canopy_height_m, u) : "");
   $("f-hc").disabled = !z;
-  for (const input of document.querySelectorAll("#sel-fields [data-num]")) setIfIdle(input, f[input.dataset.num]);
+  for (const input of document.querySelectorAll("#sel-fields [data-num]")) setIfIdle(input, f[input.dataset.num] ?? 0);
+  $("f-aim").disabled = !f.tilt_deg;  // a fixture hung straight down has no direction to lean
   const circ = $("f-circuit");
   const opts = room().circuits.map((c) => `<option>${escapeHtml(c.name)}</option>`).join("");
   if (circ.innerHTML !== opts) circ.innerHTML = opts;
@@ -131,7 +139,8 @@ export function wireFixturePanel() {
   for (const input of document.querySelectorAll("#sel-fields [data-num]")) {
     input.addEventListener("change", () => {
       const key = input.dataset.num;
-      const v = key === "dimming_pct" ? numberOf(input, 10, 100, "dimming") : numberOf(input, 0, 359.999, "rotation");
+      const [lo, hi, what] = NUMBER_FIELDS[key];
+      const v = numberOf(input, lo, hi, what);
       if (v === null) return;
       tryCommit(input, (r) => { for (const id of state.selection) { const f = byId(r, id); f[key] = v; clampInside(f, r); } });
     });
