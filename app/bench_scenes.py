@@ -1,12 +1,13 @@
 """The benchmark's scenes beyond the plain samples: a sample room as an engine scene, the sample tent with a
-carbon filter and a clip fan, and a white-painted room with an open doorway (``python -m app.bench``)."""
+carbon filter and a clip fan, a white-painted room with an open doorway, and a rack lit from its open front by
+tilted bars (``python -m app.bench``)."""
 
 from __future__ import annotations
 
 from dataclasses import replace
 
 from app.assets import asset_dir
-from app.engine.distributions import lambertian
+from app.engine.distributions import cosine_power, lambertian
 from app.engine.scene import Box, Emitter, Enclosure, Grid
 from app.room.roomfile import parse_room_file
 from app.service.scene_builder import EngineScene, build_scene
@@ -45,3 +46,30 @@ def white_room() -> EngineScene:
         for k, (x, y) in enumerate([(0.9, 1.2), (2.1, 1.2), (0.9, 2.4), (2.1, 2.4)])
     )
     return EngineScene(fixtures, (Grid("floor", 0.0, 0.0, W, L, 0.9, 0.025),), enc, ())
+
+
+def side_lit_rack() -> EngineScene:
+    """A 1.2 × 0.6 m rack of three shelves (2.5 cm boards) in a film-wrapped 1.2 × 1.2 m bay, its front open;
+    on each tier one 1.2 m bar hangs 15 cm in front of the shelf edge, 35 cm above the board, tilted 55°
+    toward the back so it lights the tier from the side (a vertical-farm wall lit between its shelves)."""
+    W, L, H = 1.2, 1.2, 2.0
+    enc = Enclosure(
+        W,
+        L,
+        H,
+        surfaces=(
+            ("left", "specular", 0.95),
+            ("right", "specular", 0.95),
+            ("back", "specular", 0.95),
+            ("front", "open", 0.0),
+            ("ceiling", "absorbing", 0.0),
+        ),
+    )
+    tiers = (0.0, 0.6, 1.2)
+    boards = tuple(Box(0.0, 0.6, z - 0.025, W, L, z) for z in tiers[1:])
+    grids = tuple(Grid(f"tier-{k}", 0.0, 0.6, W, 0.6, z + 0.05, 0.025) for k, z in enumerate(tiers))
+    bars = tuple(
+        Emitter(f"b{k}", 0.6, 0.45, z + 0.35, 250.0, cosine_power(1.5), "bar", 1.2, 0.03, tilt_deg=55.0, aim_deg=90.0)
+        for k, z in enumerate(tiers)
+    )
+    return EngineScene(bars, grids, enc, boards)
