@@ -20,6 +20,26 @@ CURVE_POINTS_PER_SIDE = 60
 LOWEST_ABOVE_CANOPY_M = 0.1
 
 
+def _emitters(room, chosen, dz_m: float, dimming_pct: float | None = None) -> tuple:
+    """The chosen fixtures that are on, moved up by dz_m, at their own dimming or at ``dimming_pct``."""
+    types = {t.id: t for t in room.fixture_types}
+    return tuple(
+        emitter_for(
+            f.id,
+            types[f.type_id],
+            f.x_m,
+            f.y_m,
+            f.hanging_height_m + dz_m,
+            f.rotation_deg,
+            f.dimming_pct if dimming_pct is None else dimming_pct,
+            factor_for(room, types[f.type_id]),
+            **aim_fields(f),
+        )
+        for f in chosen
+        if f.on
+    )
+
+
 def curves(rf: RoomFile, zone_id: str, fixture_ids: tuple[str, ...] = (), steps: int = 12) -> dict[str, Any]:
     """PPFD figures on a zone against the hanging height of its fixtures (moved together) and their dimming."""
     room = rf.room
@@ -36,7 +56,6 @@ def curves(rf: RoomFile, zone_id: str, fixture_ids: tuple[str, ...] = (), steps:
     spacing = max(room.grid_spacing_m, max(z.width_m, z.length_m) / CURVE_POINTS_PER_SIDE)
     grids = tuple(zone_grid(zz, spacing) for zz in room.zones)  # every canopy blocks wall light, as in the analysis
     grid = grids[index]
-    types = {t.id: t for t in room.fixture_types}
     others = tuple(e for e in scene.emitters if e.id not in ids)
 
     def ppfd(emitters):
@@ -48,41 +67,10 @@ def curves(rf: RoomFile, zone_id: str, fixture_ids: tuple[str, ...] = (), steps:
     rows = []
     for h in heights:
         dz = h - lowest
-        em = tuple(
-            emitter_for(
-                f.id,
-                types[f.type_id],
-                f.x_m,
-                f.y_m,
-                f.hanging_height_m + dz,
-                f.rotation_deg,
-                f.dimming_pct,
-                factor_for(room, types[f.type_id]),
-                **aim_fields(f),
-            )
-            for f in chosen
-            if f.on
-        )
-        s = area_weighted_stats(ppfd(others + em), grid.cell_area_m2)
+        s = area_weighted_stats(ppfd(others + _emitters(room, chosen, dz)), grid.cell_area_m2)
         rows.append({"above_canopy_m": float(h - z.canopy_height_m), "avg": s["avg"], "max": s["max"], "min": s["min"]})
     rest = ppfd(others)
-    own = ppfd(
-        tuple(
-            emitter_for(
-                f.id,
-                types[f.type_id],
-                f.x_m,
-                f.y_m,
-                f.hanging_height_m,
-                f.rotation_deg,
-                100.0,
-                factor_for(room, types[f.type_id]),
-                **aim_fields(f),
-            )
-            for f in chosen
-            if f.on
-        )
-    )
+    own = ppfd(_emitters(room, chosen, 0.0, dimming_pct=100.0))
     dims = []
     for d in np.linspace(10, 100, 10):  # every chosen fixture set to d %: PPFD is linear in it
         s = area_weighted_stats(rest + own * d / 100, grid.cell_area_m2)
