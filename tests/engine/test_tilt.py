@@ -272,3 +272,32 @@ def test_tilted_panel_with_and_without_a_shadow(with_box):
     # Measured: 0.09 % of the peak at worst in open air, 0.66 % at the shadow's edge (RMS 0.01 % and 0.04 %).
     assert err.max() < (0.01 if with_box else 2e-3), err.max()
     assert np.sqrt(np.mean(err**2)) < (2e-3 if with_box else 5e-4)
+
+
+@pytest.mark.parametrize("tilt, aim", [(30.0, 0.0), (50.0, 120.0)])
+def test_tilted_lambertian_panel_matches_the_contour_formula(tilt, aim):
+    """A 0.6 × 0.4 m Lambertian panel tilted toward one side, seen from level points on the floor: by
+    reciprocity E = M · F(dA → panel), M = Φ / area, F by Lambert's contour formula for the element and the
+    tilted rectangle (Siegel & Howell, Thermal Radiation Heat Transfer, element to polygon; the same formula
+    gives Howell's element-to-tilted-rectangle cases)."""
+    from app.engine.aim import aim_matrix
+    from app.engine.direct import direct_patch
+    from app.engine.formfactors import element_to_polygon
+
+    length, width, z = 0.6, 0.4, 1.0
+    e = Emitter("p", 0.0, 0.0, z, PPF, lambertian(), "panel", length, width, tilt_deg=tilt, aim_deg=aim)
+    g = Grid("g", -1.0, -1.0, 2.0, 2.0, 0.0, 0.1)
+    out = np.zeros((g.ny, g.nx))
+    direct_patch(e, g, dtype=np.float64).add_into(out)
+    m = aim_matrix(0.0, tilt, aim)
+    u, v = m[:, 0] * length / 2, m[:, 1] * width / 2
+    c = np.array([0.0, 0.0, z])
+    corners = np.array([[c - u - v, c + u - v, c + u + v, c - u + v]])
+    pts = grid_points(g).reshape(-1, 3)
+    face = aim_axis(tilt, aim)
+    # Points the whole face looks at (in front of its plane), as the formula asks.
+    front = np.all((pts[:, None, :] - corners[0][None]) @ face > 1e-9, axis=1)
+    ref = PPF / (length * width) * element_to_polygon(pts[front], (0.0, 0.0, 1.0), corners)[:, 0]
+    got = out.reshape(-1)[front]
+    assert front.sum() > 200
+    assert_allclose(got, ref, rtol=2e-3, atol=1e-3 * ref.max())
