@@ -1,0 +1,52 @@
+"""Small things found walking through the editor as a grower on a laptop (1024 × 768) in a real Chromium."""
+
+import pytest
+
+from tests.browser.helpers import api, fresh_room, wait_analysis_idle
+
+pytestmark = pytest.mark.browser
+
+
+def test_zero_hanging_height_is_refused_beside_its_box_and_nothing_is_sent(live_server, page):
+    # The room file needs a hanging height above zero (app/room/models.py); the browser must say so beside the
+    # box, in words, instead of sending the room and showing the server's field path in the banner.
+    room = fresh_room(live_server, name="Zero height tent")
+    before = api(live_server, f"/api/rooms/{room}")
+    page.goto(f"{live_server}/rooms/{room}")
+    wait_analysis_idle(page)
+    page.click('[data-fixture-id="F1"]')
+    page.fill("#f-h", "0")
+    page.press("#f-h", "Tab")
+    assert page.get_attribute("#f-h", "aria-invalid") == "true"
+    msg = page.locator("#f-h + .field-msg").inner_text()
+    assert "hanging height" in msg and "F1" in msg
+    page.wait_for_timeout(600)
+    assert page.locator("#banner").is_hidden()
+    assert api(live_server, f"/api/rooms/{room}")["room"] == before["room"]
+    assert page.errors == []
+
+
+def test_hanging_grid_is_drawn_on_the_plan(live_server, page):
+    # Rails (one pitch) are lines across the room, hook points (both pitches) are dots at the crossings: a
+    # 4 ft tent with rails every 2 ft from 1 ft has two rails (1 ft, 3 ft); with 2 ft rows as well, 2 × 2 hooks.
+    room = fresh_room(live_server, name="Drawn rails tent")
+    page.goto(f"{live_server}/rooms/{room}")
+    wait_analysis_idle(page)
+    assert page.locator("[data-hanging-grid]").count() == 0
+    page.click("#tab-room")
+    page.fill("#hg-ox", "1'")
+    page.press("#hg-ox", "Tab")
+    page.fill("#hg-px", "2'")
+    page.press("#hg-px", "Tab")
+    page.wait_for_function("() => document.querySelectorAll('[data-hanging-grid] line').length === 2")
+    xs = page.eval_on_selector_all("[data-hanging-grid] line", "ls => ls.map((l) => +l.getAttribute('x1'))")
+    room_box = page.eval_on_selector("#plan .room", "r => [+r.getAttribute('x'), +r.getAttribute('width')]")
+    shares = sorted((x - room_box[0]) / room_box[1] for x in xs)
+    assert shares == pytest.approx([0.25, 0.75], abs=0.01)
+    page.fill("#hg-oy", "1'")
+    page.press("#hg-oy", "Tab")
+    page.fill("#hg-py", "2'")
+    page.press("#hg-py", "Tab")
+    page.wait_for_function("() => document.querySelectorAll('[data-hanging-grid] circle').length === 4")
+    assert page.locator("[data-hanging-grid] line").count() == 0
+    assert page.errors == []
