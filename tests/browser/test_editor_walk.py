@@ -50,3 +50,27 @@ def test_hanging_grid_is_drawn_on_the_plan(live_server, page):
     page.wait_for_function("() => document.querySelectorAll('[data-hanging-grid] circle').length === 4")
     assert page.locator("[data-hanging-grid] line").count() == 0
     assert page.errors == []
+
+
+def test_planner_boxes_and_answers_are_in_the_rooms_units_and_bad_boxes_are_named(live_server, page):
+    # The hobby tent is an imperial room: the planner's lengths are typed and shown in feet and inches.
+    room = fresh_room(live_server, name="Planner units tent")
+    page.goto(f"{live_server}/rooms/{room}/plan")
+    assert page.input_value("#clearance") == '6"' and "(ft-in)" in page.locator("label[for=clearance]").inner_text()
+    page.fill("#gap", "five")
+    page.fill("#budget", "0")
+    page.click("#plan-run")
+    assert "least gap" in page.locator("#gap + .field-msg").inner_text()
+    assert "power budget" in page.locator("#budget + .field-msg").inner_text()
+    assert "Not started" in page.locator("#plan-message").inner_text()
+    assert page.locator("#plan-cancel").is_disabled()
+    page.fill("#gap", '4"')
+    page.fill("#budget", "")
+    page.click("#plan-run")
+    page.wait_for_selector("#proposals .proposal", timeout=90000)
+    assert page.locator(".field-msg").count() == 0
+    text = page.locator("#proposals").inner_text()
+    assert "above the canopy" in text and " cm above" not in text and "″ above the canopy" in text
+    page.locator("#proposals details").first.click()
+    assert "(m)" not in page.locator("#proposals details").first.inner_text()
+    assert page.errors == []
