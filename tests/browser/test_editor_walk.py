@@ -74,3 +74,29 @@ def test_planner_boxes_and_answers_are_in_the_rooms_units_and_bad_boxes_are_name
     page.locator("#proposals details").first.click()
     assert "(m)" not in page.locator("#proposals details").first.inner_text()
     assert page.errors == []
+
+
+def test_map_fit_refuses_each_bad_box_by_name_and_sends_nothing(live_server, page):
+    page.goto(f"{live_server}/fixtures/new")
+    sent = []
+    page.on("request", lambda r: sent.append(r.url) if "/api/photometry/fit" in r.url else None)
+    page.fill("#fit-readings", "300 400 300\n400 500 400\n300 400 300")
+    page.fill("#fit-cell", "0")
+    page.fill("#fit-height", "-1 ft")
+    page.click("#fit-power")
+    page.keyboard.type("e")  # a number box holding text reads as blank: it must not pass as "no power given"
+    page.click("#fit-run")
+    assert "distance between readings" in page.locator("#fit-cell + .field-msg").inner_text()
+    assert "hanging height" in page.locator("#fit-height + .field-msg").inner_text()
+    assert "claimed power" in page.locator("#fit-power + .field-msg").inner_text()
+    assert "Not fitted" in page.locator("#fit-message").inner_text()
+    page.wait_for_timeout(300)
+    assert sent == []
+    page.fill("#fit-cell", "1 ft")
+    page.fill("#fit-height", "18 in")
+    page.fill("#fit-power", "")
+    page.click("#fit-run")
+    page.wait_for_function("() => document.getElementById('fit-message').textContent.startsWith('Fitted')")
+    assert page.locator(".field-msg").count() == 0
+    assert " m²" not in page.locator("#fit-findings").inner_text()  # the page is in feet and inches
+    assert page.errors == []

@@ -94,7 +94,7 @@ function planBody(types) {
   let ok = true;
   const num = (id, what, lo, hi, blank) => {
     const box = $(id), text = String(box.value).trim().replace(",", ".");
-    if (!text && blank !== undefined) { clearFieldError(box); return blank; }
+    if (!text && blank !== undefined && !(box.validity && box.validity.badInput)) { clearFieldError(box); return blank; }
     const v = Number(text);
     if (!text || !Number.isFinite(v) || v < lo || v > hi) { showFieldError(box, `${what} must be a number from ${lo} to ${hi}`, ""); ok = false; return null; }
     clearFieldError(box); return v;
