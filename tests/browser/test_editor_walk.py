@@ -100,3 +100,31 @@ def test_map_fit_refuses_each_bad_box_by_name_and_sends_nothing(live_server, pag
     assert page.locator(".field-msg").count() == 0
     assert " m²" not in page.locator("#fit-findings").inner_text()  # the page is in feet and inches
     assert page.errors == []
+
+
+def test_meter_page_names_the_box_a_bad_reading_set_or_spot_comes_from(live_server, page):
+    # The server's own words were "Input should be greater than 0" and a regular expression; the page now says
+    # which box is wrong, in the room's units, and sends nothing.
+    room = fresh_room(live_server, name="Meter words tent")
+    before = api(live_server, f"/api/rooms/{room}")
+    page.goto(f"{live_server}/rooms/{room}/meter")
+    page.click("#rs-delete")
+    assert "not saved yet" in page.locator("#rs-message").inner_text()
+    page.fill("#rs-paste", "400 520 510\n480 640 630\n470 630 640")
+    page.fill("#rs-sx", "0")
+    page.click("#rs-save")
+    assert "spacing across must be more than zero" in page.locator("#rs-message").inner_text()
+    page.fill("#rs-sx", "1'")
+    page.fill("#rs-id", "bad name!")
+    page.click("#rs-save")
+    assert "the name must start with a letter or digit" in page.locator("#rs-message").inner_text()
+    page.fill("#rs-id", "first")
+    page.fill("#rs-paste", "400 -5 510\n480 640 630\n470 630 640")
+    page.click("#rs-save")
+    assert "row 1, column 2: a reading cannot be negative" in page.locator("#rs-message").inner_text()
+    page.fill("#spot-x", "9'")  # the tent's one zone is 4 ft wide
+    page.click("#spot-run")
+    msg = page.locator("#spot-message").inner_text()
+    assert "outside Pepper pots" in msg and "9′ 0″" in msg and "tent-floor" not in msg
+    assert api(live_server, f"/api/rooms/{room}")["revision"] == before["revision"]
+    assert page.errors == []
