@@ -128,3 +128,28 @@ def test_meter_page_names_the_box_a_bad_reading_set_or_spot_comes_from(live_serv
     assert "outside Pepper pots" in msg and "9′ 0″" in msg and "tent-floor" not in msg
     assert api(live_server, f"/api/rooms/{room}")["revision"] == before["revision"]
     assert page.errors == []
+
+
+def test_server_field_paths_are_said_with_the_rooms_names(live_server, page):
+    # A refusal the browser did not foresee still reaches the grower in words: the item's name, not its index.
+    room = fresh_room(live_server, "basement-two-benches", name="Field words basement")
+    doc = api(live_server, f"/api/rooms/{room}")
+    page.goto(f"{live_server}/rooms/{room}")
+    said = page.evaluate(
+        """async (doc) => {
+          const api = await import("/static/js/lib/api.js");
+          const body = { problems: [
+            { field: "room.fixtures[0].hanging_height_m", message: "Input should be greater than 0" },
+            { field: "room.zones[1].width_m", message: "Input should be greater than 0" },
+            { field: "room.height_m", message: "Input should be greater than 0" },
+            { field: "revision", message: "Field required" }] };
+          return api.problemsText(body, 4, doc);
+        }""",
+        doc,
+    )
+    first, zone = doc["room"]["fixtures"][0]["id"], doc["room"]["zones"][1]["name"]
+    assert said == (
+        f"fixture {first}, hanging height: Input should be greater than 0; "
+        f"zone {zone}, width: Input should be greater than 0; "
+        "the room's height: Input should be greater than 0; revision: Field required"
+    )
