@@ -153,3 +153,23 @@ def test_server_field_paths_are_said_with_the_rooms_names(live_server, page):
         f"zone {zone}, width: Input should be greater than 0; "
         "the room's height: Input should be greater than 0; revision: Field required"
     )
+
+
+def test_plan_labels_stay_readable_on_a_laptop(live_server, browser):
+    # The metric chamber is long and narrow: its plan reaches the bottom of the drawing, where the scale bar was
+    # drawn through the width, and its panels hang over the zone's label.
+    ctx = browser.new_context(viewport={"width": 1024, "height": 768})
+    page = ctx.new_page()
+    room = fresh_room(live_server, "research-chamber-metric", name="Label chamber")
+    page.goto(f"{live_server}/rooms/{room}")
+    wait_analysis_idle(page)
+    bar = page.locator("#plan .scalebar").bounding_box()
+    width = page.locator("#plan text.dim", has_text="width").bounding_box()
+    apart = bar["y"] + bar["height"] < width["y"] or width["y"] + width["height"] < bar["y"]
+    assert apart or bar["x"] + bar["width"] < width["x"]
+    order = page.evaluate(
+        "() => { const kids = [...document.getElementById('plan').children];"
+        " return [kids.findIndex((k) => k.matches('g.fixtures')), kids.findIndex((k) => k.matches('text.zone-label'))]; }"
+    )
+    assert 0 <= order[0] < order[1]  # the zone's name is drawn over the fixtures
+    ctx.close()

@@ -156,22 +156,18 @@ export function createPlan(svg, cb) {
       if (tier && tier !== z.id) continue;
       rect(z.x_m, z.y_m, z.x_m + z.width_m, z.y_m + z.length_m, { class: "zone", "data-zone-id": z.id }, svg);
       if (zonesById[z.id]) drawZoneLight(z, zonesById[z.id], opts);
-      const [zx, zy] = toScreen(z.x_m, z.y_m + z.length_m);
-      const t = el("text", { x: zx + 4, y: zy + 14, class: "zone-label" }, svg);
-      fitLabel(t, `${z.name} · canopy ${L(z.canopy_height_m)}`, toScreen(z.x_m + z.width_m, z.y_m)[0] - zx - 8);
     }
     // With one tier shown, draw only the obstacles between its canopy and the shelf right above it.
     const shown = tier ? room.zones.find((z) => z.id === tier) : null;
     const cover = shown ? Math.min(...room.obstacles.filter((o) => o.z_m >= shown.canopy_height_m).map((o) => o.z_m), Infinity) : Infinity;
-    const labelsAt = new Map();
+    const labelsAt = new Map(), labels = [];   // obstacle labels are drawn over the fixtures, like zone labels
     for (const o of room.obstacles) {
       if (shown && (o.z_m + o.height_m < shown.canopy_height_m - 0.1 || o.z_m > cover + 1e-6)) continue;
       rect(o.x_m, o.y_m, o.x_m + o.width_m, o.y_m + o.length_m, { class: "obstacle" }, svg);
       const [ox, oy] = toScreen(o.x_m, o.y_m);
       const spot = `${ox.toFixed(0)},${oy.toFixed(0)}`, stackedLabels = labelsAt.get(spot) || 0;
       labelsAt.set(spot, stackedLabels + 1);   // shelves one above another: their labels one above another
-      const t = el("text", { x: ox + 4, y: oy - 4 - 12 * stackedLabels, class: "obstacle-label" }, svg);
-      t.textContent = `${o.name} (${L(o.z_m)}–${L(o.z_m + o.height_m)})`;
+      labels.push([ox + 4, oy - 4 - 12 * stackedLabels, "obstacle-label", `${o.name} (${L(o.z_m)}–${L(o.z_m + o.height_m)})`]);
     }
     if (room.hanging_grid) drawHangingGrid(room);
     const types = Object.fromEntries(room.fixture_types.map((t) => [t.id, t]));
@@ -181,6 +177,13 @@ export function createPlan(svg, cb) {
       const z = opts.zoneOf(f), zid = z ? z.id : null;
       if (tier && zid !== tier) continue;
       fixtureShape(fg, f, types[f.type_id], opts.selection.has(f.id), zoneNames[zid]);
+    }
+    for (const [lx, ly, cls, text] of labels) el("text", { x: lx, y: ly, class: cls }, svg).textContent = text;
+    for (const z of room.zones) {   // over the fixtures, so a fixture hung at the zone's edge does not hide its name
+      if (tier && tier !== z.id) continue;
+      const [zx, zy] = toScreen(z.x_m, z.y_m + z.length_m);
+      const t = el("text", { x: zx + 4, y: zy + 14, class: "zone-label" }, svg);
+      fitLabel(t, `${z.name} · canopy ${L(z.canopy_height_m)}`, toScreen(z.x_m + z.width_m, z.y_m)[0] - zx - 8);
     }
     drawDimensions(room, units, h);
     for (const r of opts.regions || []) {
@@ -229,10 +232,11 @@ export function createPlan(svg, cb) {
     el("text", { x: x0 - 8, y: y0 + H / 2, "text-anchor": "middle", class: "dim", transform: `rotate(-90 ${x0 - 8} ${y0 + H / 2})` }, svg)
       .textContent = `length ${Units.length(room.length_m, units)}`;
     const stepM = units === "imperial" ? niceFeet(120 / view.scale) : niceStep(120 / view.scale);
-    const bx = 12, by = h - 14;
+    // The scale bar goes top left when the room reaches down to it, so it never runs through the width.
+    const bx = 12, by = y0 + H + 18 > h - 34 ? 22 : h - 14;
     el("line", { x1: bx, y1: by, x2: bx + stepM * view.scale, y2: by, class: "scalebar" }, svg);
     el("text", { x: bx, y: by - 5, class: "dim" }, svg).textContent = Units.length(stepM, units);
-    el("text", { x: x0 + 4, y: y0 + H - 4, class: "side-label" }, svg).textContent = "front";
+    el("text", { x: x0 + W - 4, y: y0 + H - 4, "text-anchor": "end", class: "side-label" }, svg).textContent = "front";  // obstacle labels start at the left
   }
 
   function drawReadout(a) {
