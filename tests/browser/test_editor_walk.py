@@ -142,8 +142,9 @@ def test_server_field_paths_are_said_with_the_rooms_names(live_server, page):
             { field: "room.fixtures[0].hanging_height_m", message: "Input should be greater than 0" },
             { field: "room.zones[1].width_m", message: "Input should be greater than 0" },
             { field: "room.height_m", message: "Input should be greater than 0" },
+            { field: "room.zones[0].cycle.steps[1].fixture_height_m", message: "Input should be greater than 0" },
             { field: "revision", message: "Field required" }] };
-          return api.problemsText(body, 4, doc);
+          return api.problemsText(body, 5, doc);
         }""",
         doc,
     )
@@ -151,7 +152,9 @@ def test_server_field_paths_are_said_with_the_rooms_names(live_server, page):
     assert said == (
         f"fixture {first}, hanging height: Input should be greater than 0; "
         f"zone {zone}, width: Input should be greater than 0; "
-        "the room's height: Input should be greater than 0; revision: Field required"
+        "the room's height: Input should be greater than 0; "
+        f"zone {doc['room']['zones'][0]['name']}, cycle, step 2, fixture height: Input should be greater than 0; "
+        "revision: Field required"
     )
 
 
@@ -173,3 +176,24 @@ def test_plan_labels_stay_readable_on_a_laptop(live_server, browser):
     )
     assert 0 <= order[0] < order[1]  # the zone's name is drawn over the fixtures
     ctx.close()
+
+
+def test_year_page_refuses_text_in_a_number_box_and_a_negative_height_by_name(live_server, page):
+    room = fresh_room(live_server, name="Year words tent")
+    page.goto(f"{live_server}/rooms/{room}/year")
+    page.get_by_role("button", name="Plan a cycle for Pepper pots").click()
+    page.wait_for_selector("#cycle-steps-0 input")
+    rev = api(live_server, f"/api/rooms/{room}")["revision"]
+    page.locator("#cycle-steps-0 input[type=number]").nth(2).click()  # the step's dimming, blank: as set
+    page.keyboard.type("e")
+    page.get_by_role("button", name="Save the cycle").click()
+    page.wait_for_selector("#banner:not([hidden])")
+    assert "step 1 dimming: enter a number" in page.locator("#banner").inner_text()
+    page.reload()
+    page.wait_for_selector("#cycle-steps-0 input")
+    page.locator("#cycle-steps-0 input:not([type])").nth(1).fill("-2'")  # the step's fixture height
+    page.get_by_role("button", name="Save the cycle").click()
+    page.wait_for_function("() => document.getElementById('banner').innerText.includes('fixture height')")
+    assert "step 1 fixture height: must be more than zero" in page.locator("#banner").inner_text()
+    assert api(live_server, f"/api/rooms/{room}")["revision"] == rev
+    assert page.errors == []
