@@ -38,7 +38,7 @@ export async function save(force) {
       showConflict(res.body.message);
     } else {
       status("Not saved");
-      showBanner(`Not saved: ${problemsText(res.body)}`, [["Dismiss", hideBanner]]);
+      showBanner(`Not saved: ${problemsText(res.body, 4, state.doc)}`, [["Dismiss", hideBanner]]);
     }
   } catch (err) {
     status("Not saved (offline)");

@@ -49,7 +49,7 @@ async function requestAnalysis(urgent = false) {
         paintAnswer(started, moveAt, sentWhileDragging);   // it counts the request done once painted
         handedOver = true;
       } else {
-        markStale(`${problemsText(res.body)}.`);
+        markStale(`${problemsText(res.body, 4, state.doc)}.`);
         $("map-status").textContent = "Not computed.";
       }
     }

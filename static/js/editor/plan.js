@@ -7,6 +7,7 @@ import { masks, cellRuns } from "./scale.js";
 const NS = "http://www.w3.org/2000/svg";
 const FIT_SHARE = 0.86;            // the room fills this share of the drawing area when fitted
 const DRAG_THRESHOLD_PX = 2;
+const MAX_GRID_LINES = 200;        // rails or hook rows drawn along one axis at most (a finer grid is drawn in part)
 
 function el(name, attrs, parent) {
   const e = document.createElementNS(NS, name);
@@ -23,6 +24,19 @@ function niceFeet(m) {
   const ft = m / Units.M_PER_FT;
   for (const k of [0.5, 1, 2, 5, 10, 20, 50, 100]) if (k >= ft) return k * Units.M_PER_FT;
   return 100 * Units.M_PER_FT;
+}
+
+/** Text no wider than maxPx: cut with an ellipsis when it would run over its neighbour; the full text on hover. */
+function fitLabel(text, full, maxPx) {
+  text.textContent = full;
+  el("title", {}, text).textContent = full;
+  const width = text.getComputedTextLength();
+  if (!(width > maxPx) || !(maxPx > 0)) return;
+  let keep = Math.max(1, Math.floor(full.length * maxPx / width) - 1);
+  for (; keep > 1; keep--) {
+    text.firstChild.textContent = `${full.slice(0, keep).trimEnd()}…`;
+    if (text.getComputedTextLength() <= maxPx) break;
+  }
 }
 
 // Hatching: diagonal lines for dark areas, cross-hatching for hot ones (a shape cue besides the colour).
@@ -142,23 +156,20 @@ export function createPlan(svg, cb) {
       if (tier && tier !== z.id) continue;
       rect(z.x_m, z.y_m, z.x_m + z.width_m, z.y_m + z.length_m, { class: "zone", "data-zone-id": z.id }, svg);
       if (zonesById[z.id]) drawZoneLight(z, zonesById[z.id], opts);
-      const [zx, zy] = toScreen(z.x_m, z.y_m + z.length_m);
-      const t = el("text", { x: zx + 4, y: zy + 14, class: "zone-label" }, svg);
-      t.textContent = `${z.name} · canopy ${L(z.canopy_height_m)}`;
     }
     // With one tier shown, draw only the obstacles between its canopy and the shelf right above it.
     const shown = tier ? room.zones.find((z) => z.id === tier) : null;
     const cover = shown ? Math.min(...room.obstacles.filter((o) => o.z_m >= shown.canopy_height_m).map((o) => o.z_m), Infinity) : Infinity;
-    const labelsAt = new Map();
+    const labelsAt = new Map(), labels = [];   // obstacle labels are drawn over the fixtures, like zone labels
     for (const o of room.obstacles) {
       if (shown && (o.z_m + o.height_m < shown.canopy_height_m - 0.1 || o.z_m > cover + 1e-6)) continue;
       rect(o.x_m, o.y_m, o.x_m + o.width_m, o.y_m + o.length_m, { class: "obstacle" }, svg);
       const [ox, oy] = toScreen(o.x_m, o.y_m);
       const spot = `${ox.toFixed(0)},${oy.toFixed(0)}`, stackedLabels = labelsAt.get(spot) || 0;
       labelsAt.set(spot, stackedLabels + 1);   // shelves one above another: their labels one above another
-      const t = el("text", { x: ox + 4, y: oy - 4 - 12 * stackedLabels, class: "obstacle-label" }, svg);
-      t.textContent = `${o.name} (${L(o.z_m)}–${L(o.z_m + o.height_m)})`;
+      labels.push([ox + 4, oy - 4 - 12 * stackedLabels, "obstacle-label", `${o.name} (${L(o.z_m)}–${L(o.z_m + o.height_m)})`]);
     }
+    if (room.hanging_grid) drawHangingGrid(room);
     const types = Object.fromEntries(room.fixture_types.map((t) => [t.id, t]));
     const zoneNames = Object.fromEntries(room.zones.map((zz) => [zz.id, zz.name]));
     const fg = el("g", { class: "fixtures" }, svg);
@@ -166,6 +177,13 @@ export function createPlan(svg, cb) {
       const z = opts.zoneOf(f), zid = z ? z.id : null;
       if (tier && zid !== tier) continue;
       fixtureShape(fg, f, types[f.type_id], opts.selection.has(f.id), zoneNames[zid]);
+    }
+    for (const [lx, ly, cls, text] of labels) el("text", { x: lx, y: ly, class: cls }, svg).textContent = text;
+    for (const z of room.zones) {   // over the fixtures, so a fixture hung at the zone's edge does not hide its name
+      if (tier && tier !== z.id) continue;
+      const [zx, zy] = toScreen(z.x_m, z.y_m + z.length_m);
+      const t = el("text", { x: zx + 4, y: zy + 14, class: "zone-label" }, svg);
+      fitLabel(t, `${z.name} · canopy ${L(z.canopy_height_m)}`, toScreen(z.x_m + z.width_m, z.y_m)[0] - zx - 8);
     }
     drawDimensions(room, units, h);
     for (const r of opts.regions || []) {
@@ -184,6 +202,29 @@ export function createPlan(svg, cb) {
     }
   }
 
+  // The hanging grid: rails (one pitch) as lines, hook points (both pitches) as dots, where fixture centres go.
+  function drawHangingGrid(room) {
+    const g = room.hanging_grid, grp = el("g", { class: "hanging-grid", "data-hanging-grid": "" }, svg);
+    const lines = (origin, pitch, extent) => {
+      if (!(pitch > 0)) return null;
+      const out = [];
+      for (let k = Math.ceil((0 - origin) / pitch - 1e-9); origin + k * pitch <= extent + 1e-9 && out.length < MAX_GRID_LINES; k++) {
+        out.push(origin + k * pitch);
+      }
+      return out;
+    };
+    const xs = lines(g.origin_x_m, g.pitch_x_m, room.width_m), ys = lines(g.origin_y_m, g.pitch_y_m, room.length_m);
+    if (xs && ys) {
+      for (const x of xs) for (const y of ys) {
+        const [px, py] = toScreen(x, y);
+        el("circle", { cx: px, cy: py, r: 2.5, class: "hook" }, grp);
+      }
+      return;
+    }
+    for (const x of xs || []) { const [p1, q1] = toScreen(x, 0), [p2, q2] = toScreen(x, room.length_m); el("line", { x1: p1, y1: q1, x2: p2, y2: q2, class: "rail" }, grp); }
+    for (const y of ys || []) { const [p1, q1] = toScreen(0, y), [p2, q2] = toScreen(room.width_m, y); el("line", { x1: p1, y1: q1, x2: p2, y2: q2, class: "rail" }, grp); }
+  }
+
   function drawDimensions(room, units, h) {
     const [x0, y0] = toScreen(0, room.length_m);
     const W = room.width_m * view.scale, H = room.length_m * view.scale;
@@ -191,10 +232,11 @@ export function createPlan(svg, cb) {
     el("text", { x: x0 - 8, y: y0 + H / 2, "text-anchor": "middle", class: "dim", transform: `rotate(-90 ${x0 - 8} ${y0 + H / 2})` }, svg)
       .textContent = `length ${Units.length(room.length_m, units)}`;
     const stepM = units === "imperial" ? niceFeet(120 / view.scale) : niceStep(120 / view.scale);
-    const bx = 12, by = h - 14;
+    // The scale bar goes top left when the room reaches down to it, so it never runs through the width.
+    const bx = 12, by = y0 + H + 18 > h - 34 ? 22 : h - 14;
     el("line", { x1: bx, y1: by, x2: bx + stepM * view.scale, y2: by, class: "scalebar" }, svg);
     el("text", { x: bx, y: by - 5, class: "dim" }, svg).textContent = Units.length(stepM, units);
-    el("text", { x: x0 + 4, y: y0 + H - 4, class: "side-label" }, svg).textContent = "front";
+    el("text", { x: x0 + W - 4, y: y0 + H - 4, "text-anchor": "end", class: "side-label" }, svg).textContent = "front";  // obstacle labels start at the left
   }
 
   function drawReadout(a) {

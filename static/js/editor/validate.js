@@ -36,6 +36,7 @@ export function roomProblems(r, units) {
     const [hx, hy] = halfExtent(f, types);
     if (f.x_m - hx < -EDGE_TOLERANCE_M || f.x_m + hx > r.width_m + EDGE_TOLERANCE_M || f.y_m - hy < -EDGE_TOLERANCE_M ||
         f.y_m + hy > r.length_m + EDGE_TOLERANCE_M) out.push(`fixture ${f.id} would reach beyond the walls`);
+    if (!(f.hanging_height_m > 0)) out.push(`fixture ${f.id}'s hanging height must be above the floor (more than zero)`);
     if (f.hanging_height_m > r.height_m + EDGE_TOLERANCE_M) out.push(`fixture ${f.id} (${L(f.hanging_height_m)}) would hang above the ceiling (${L(r.height_m)})`);
     for (const z of r.zones) {
       const over = z.x_m <= f.x_m && f.x_m <= z.x_m + z.width_m && z.y_m <= f.y_m && f.y_m <= z.y_m + z.length_m;

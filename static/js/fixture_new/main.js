@@ -2,6 +2,7 @@
 import { request } from "../lib/api.js";
 import * as Units from "../lib/units.js";
 import { fmt, escapeHtml as esc } from "../lib/format.js";
+import { showFieldError, clearFieldError } from "../lib/fieldmsg.js";
 
 const $ = (id) => document.getElementById(id);
 let units = "imperial";
@@ -71,21 +72,42 @@ function readGrid(text) {
   }
   return rows;
 }
+// Each box read on its own: a refused one is explained beside it, by name; null when any was refused.
+function fitBody() {
+  let ok = true;
+  const refuse = (id, text) => { showFieldError($(id), text, ""); ok = false; return null; };
+  const field = (id, read) => { try { const v = read($(id)); clearFieldError($(id)); return v; } catch (e) { return refuse(id, e.message); } };
+  const len = (what) => (box) => {
+    const m = Units.parseLength(box.value, units);
+    if (!(m > 0)) throw new Error(`${what} must be more than zero`);
+    return m;
+  };
+  const optional = (what) => (box) => {
+    const text = String(box.value).trim();
+    if (box.validity && box.validity.badInput) throw new Error(`${what} must be a number above zero, or left blank`);
+    if (!text) return null;
+    const v = Number(text.replace(",", "."));
+    if (!Number.isFinite(v) || v <= 0) throw new Error(`${what} must be a number above zero, or left blank`);
+    return v;
+  };
+  const body = { readings: field("fit-readings", (box) => readGrid(box.value)),
+                 cell_m: field("fit-cell", len("the distance between readings")),
+                 hanging_height_m: field("fit-height", len("the hanging height above the map")) };
+  const ppf = field("fit-ppf", optional("the claimed PPF (µmol/s)")), power = field("fit-power", optional("the claimed power (W)"));
+  if (ppf !== null) body.claimed_ppf_umol_s = ppf;
+  if (power !== null) body.power_w = power;
+  return ok ? body : null;
+}
 $("fit-run").addEventListener("click", async () => {
-  let body;
-  try {
-    body = { readings: readGrid($("fit-readings").value), cell_m: Units.parseLength($("fit-cell").value, units),
-             hanging_height_m: Units.parseLength($("fit-height").value, units) };
-  } catch (e) { return say("fit-message", e.message, true); }
-  if ($("fit-ppf").value) body.claimed_ppf_umol_s = parseFloat($("fit-ppf").value);
-  if ($("fit-power").value) body.power_w = parseFloat($("fit-power").value);
+  const body = fitBody();
+  if (!body) return say("fit-message", "Not fitted: correct the box marked above.", true);
   if (spectrum) body.ceiling_umol_j = spectrum.ceiling_umol_j;
   say("fit-message", "Fitting…", false);
   try {
     const out = await post("/api/photometry/fit", body);
     const f = out.fit;
     say("fit-message", `Fitted: the map's RMS error is ${fmt(100 * f.rms_error, 1)} % of its mean.`, false);
-    $("fit-findings").innerHTML = out.findings.map((x) => `<li class="${x.level}"><strong>${x.level}</strong> ${esc(x.message)}</li>`).join("");
+    $("fit-findings").innerHTML = out.findings.map((x) => `<li class="${x.level}"><strong>${x.level}</strong> ${esc(Units.localise(x.message, units))}</li>`).join("");
     $("fit-report").innerHTML = `<table class="figures"><tbody>
       <tr><th scope="row">PPF that fits the map</th><td>${fmt(f.ppf_umol_s)} µmol/s</td></tr>
       <tr><th scope="row">Beam angle (cosⁿ, half intensity)</th><td>${fmt(f.beam_angle_deg)}° (n = ${fmt(f.exponent, 2)})</td></tr>

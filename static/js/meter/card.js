@@ -1,8 +1,10 @@
 // The meter page's fixture card of nested-square averages, and the squares around one spot.
 import { $, roomId, units, len, inputLen, parseLen, ax, axUnit, json, failed, zoneName, page } from "./common.js";
 import { fmt, escapeHtml as esc } from "../lib/format.js";
+import * as Units from "../lib/units.js";
 
 const room = page.room_file.room;
+const MIN_CARD_HEIGHT_M = 0.02, MAX_CARD_HEIGHT_M = 5;   // the fixture card's heights above the canopy (app/web/routes/meter.py)
 // ------------------------------------------------------------ fixture card and spots
 function squaresTable(rows, threshold) {
   return `<table class="figures squares"><thead><tr><th>Square</th><th>Average</th><th>Min</th><th>Max</th><th>min/avg</th><th>Share ≥ ${fmt(threshold)}</th><th>Share of the output landing in it</th></tr></thead><tbody>${
@@ -15,7 +17,11 @@ function lengthField(id, what) {
 $("card-height").value = inputLen(units === "imperial" ? 0.4572 : 0.45);
 $("card-run").addEventListener("click", async () => {
   let h;
-  try { h = lengthField("card-height", "height"); } catch (e) { $("card-message").textContent = e.message; return; }
+  try { h = lengthField("card-height", "the height above the canopy"); } catch (e) { $("card-message").textContent = e.message; return; }
+  if (!(h > MIN_CARD_HEIGHT_M && h <= MAX_CARD_HEIGHT_M)) {
+    $("card-message").textContent = `No card: the height above the canopy must be more than ${Units.length(MIN_CARD_HEIGHT_M, units, { fine: true })} and at most ${len(MAX_CARD_HEIGHT_M)}.`;
+    return;
+  }
   const q = new URLSearchParams({ type_id: $("card-type").value, room_id: roomId, height_m: h, threshold_umol: $("card-threshold").value || "400", dimming_pct: $("card-dim").value || "100", units });
   $("card-message").textContent = "Computing…";
   try {
@@ -36,6 +42,11 @@ $("spot-run").addEventListener("click", async () => {
   let x, y;
   try { x = lengthField("spot-x", "centre from the left wall"); y = lengthField("spot-y", "centre from the front wall"); } catch (e) { $("spot-message").textContent = e.message; return; }
   const zone = $("spot-zone").value;
+  const z = room.zones.find((q) => q.id === zone);
+  if (z && (x < z.x_m || x > z.x_m + z.width_m || y < z.y_m || y > z.y_m + z.length_m)) {
+    $("spot-message").textContent = `Not averaged: the centre (${len(x)}, ${len(y)}) is outside ${z.name}, which runs ${len(z.x_m)} to ${len(z.x_m + z.width_m)} from the left wall and ${len(z.y_m)} to ${len(z.y_m + z.length_m)} from the front wall.`;
+    return;
+  }
   const q = new URLSearchParams({ x_m: x, y_m: y, threshold_umol: $("card-threshold").value || "400" });
   try {
     const r = await json(`/api/rooms/${roomId}/zones/${encodeURIComponent(zone)}/squares?${q}`);

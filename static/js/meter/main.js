@@ -63,27 +63,46 @@ function number(text, where) {
   if (text === "" || !isFinite(v)) throw new Error(`${where}: “${text}” is not a number`);
   return v;
 }
+// The room file's rules for a reading set (app/room/meter_models.py), said with the box's name before sending.
+const SET_NAME = /^[A-Za-z0-9][A-Za-z0-9_.-]{0,39}$/;
+function within(v, lo, hi, what) {
+  if (v < lo || v > hi) throw new Error(`${what} must be from ${lo} to ${hi}`);
+  return v;
+}
+function reading(text, where) {
+  const v = number(text, where);
+  if (v < 0) throw new Error(`${where}: a reading cannot be negative`);
+  return v;
+}
 function readForm() {
   const lines = $("rs-paste").value.split(/\r?\n/).filter((l) => l.trim() !== "");
   if (!lines.length) throw new Error("paste the readings first");
   const set = { id: $("rs-id").value.trim(), zone_id: $("rs-zone").value, taken_on: $("rs-date").value, sensor: $("rs-sensor").value, notes: $("rs-notes").value };
+  if (!SET_NAME.test(set.id)) throw new Error("the name must start with a letter or digit and hold only letters, digits, -, _ or . (at most 40)");
   if (!set.taken_on) throw new Error("enter the date the readings were taken");
   if (set.sensor === "lux") {
     set.lux_per_ppfd = number($("rs-lux").value, "lux per µmol m⁻² s⁻¹");
+    if (!(set.lux_per_ppfd > 1 && set.lux_per_ppfd <= 200)) throw new Error("lux per µmol m⁻² s⁻¹ must be above 1 and at most 200");
     const preset = page.lux_presets.find((p) => p.id === $("rs-lux-preset").value);
     set.lux_factor_source = preset && preset.lux_per_ppfd === set.lux_per_ppfd ? `${preset.label}, ${preset.source}` : "entered by the grower";
   }
-  if ($("rs-dim").value !== "") set.dimming_pct = number($("rs-dim").value, "dimming");
+  if ($("rs-dim").value !== "") set.dimming_pct = within(number($("rs-dim").value, "dimming"), 10, 100, "the dimming when read (%)");
   if ($("rs-layout").value === "grid") {
-    const rows = lines.map((l, r) => cells(l).map((c, k) => (c === "" || c === "-" ? null : number(c, `row ${r + 1}, column ${k + 1}`))));
-    const L = (id, what) => { try { return parseLen($(id).value); } catch (e) { throw new Error(`${what}: ${e.message}`); } };
-    set.grid = { origin_x_m: L("rs-ox", "first reading from the left wall"), origin_y_m: L("rs-oy", "first reading from the front wall"),
-      spacing_x_m: L("rs-sx", "spacing across"), spacing_y_m: L("rs-sy", "spacing front to back"), values: rows };
+    const rows = lines.map((l, r) => cells(l).map((c, k) => (c === "" || c === "-" ? null : reading(c, `row ${r + 1}, column ${k + 1}`))));
+    const L = (id, what, positive) => {
+      let m;
+      try { m = parseLen($(id).value); } catch (e) { throw new Error(`${what}: ${e.message}`); }
+      if (positive ? !(m > 0) : m < 0) throw new Error(`${what} must be ${positive ? "more than zero" : "zero or more"}`);
+      return m;
+    };
+    set.grid = { origin_x_m: L("rs-ox", "the first reading from the left wall"), origin_y_m: L("rs-oy", "the first reading from the front wall"),
+      spacing_x_m: L("rs-sx", "the spacing across", true), spacing_y_m: L("rs-sy", "the spacing front to back", true), values: rows };
   } else {
     set.points = lines.map((l, i) => {
       const c = cells(l);
       if (c.length < 3) throw new Error(`line ${i + 1}: expected x, y and a value`);
-      return { x_m: parseLen(c[0]), y_m: parseLen(c[1]), value: number(c[2], `line ${i + 1}`) };
+      const at = (text, what) => { try { return parseLen(text); } catch (e) { throw new Error(`line ${i + 1}, ${what}: ${e.message}`); } };
+      return { x_m: at(c[0], "x"), y_m: at(c[1], "y"), value: reading(c[2], `line ${i + 1}`) };
     });
   }
   return set;
@@ -108,7 +127,7 @@ $("rs-save").addEventListener("click", async () => {
 });
 $("rs-delete").addEventListener("click", async () => {
   const id = $("set-pick").value;
-  if (!id) return;
+  if (!id) { $("rs-message").textContent = "Nothing to delete: this set is not saved yet (pick a saved set above)."; return; }
   try {
     const body = await json(`/api/rooms/${roomId}/readings/${encodeURIComponent(id)}?revision=${revision}`, { method: "DELETE" });
     roomChanged(body); fillSetPick();

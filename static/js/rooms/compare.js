@@ -30,6 +30,7 @@ page.rooms.forEach((r, i) => {
     { type: "contour", x: ax(z.grid.x_m), y: ax(z.grid.y_m), z: z.grid.ppfd, showscale: false, hoverinfo: "skip",
       contours: { coloring: "none", start: page.range.step, end: page.range.zmax, size: page.range.step, showlabels: true, labelfont: { color: "#fff", size: 10 } },
       line: { color: "rgba(255,255,255,0.55)", width: 1 } },
-  ], { height: 300, margin: { l: 40, r: 6, t: 6, b: 34 }, xaxis: { title: { text: `${z.name} (${Units.axisUnit(units)})` }, constrain: "domain" },
-       yaxis: { scaleanchor: "x", scaleratio: 1 } }, { displaylogo: false, responsive: true });
+  ], { height: 300, margin: { l: 48, r: 6, t: 26, b: 38 }, title: { text: escapeHtml(z.name), font: { size: 13 } },
+       xaxis: { title: { text: `from the left wall (${Units.axisUnit(units)})` }, constrain: "domain" },
+       yaxis: { title: { text: `from the front wall (${Units.axisUnit(units)})` }, scaleanchor: "x", scaleratio: 1 } }, { displaylogo: false, responsive: true });
 });

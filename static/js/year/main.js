@@ -1,7 +1,7 @@
 // The cycle-and-year page: grow-cycle steps and weeks, greenhouse months, tariff placement, payback.
 // Everything shown comes from the page data; every change is saved to the room file (409 if stale) and the
 // page is computed again by the server. One level of undo per change, kept for this browser tab.
-import { request } from "../lib/api.js";
+import { request, fieldText } from "../lib/api.js";
 import * as Units from "../lib/units.js";
 import { fmt, escapeHtml as esc } from "../lib/format.js";
 import { tariff, payback } from "./money.js";
@@ -47,7 +47,7 @@ async function save(mutate, what, { record = true, onSaved = null } = {}) {
   } else if (res.status === 409) {
     banner(`<p>${esc(body.message)}</p><button type="button" data-reload>Reload the room</button>`);
   } else {
-    const list = (body.problems || []).map((p) => `<li><code>${esc(p.field)}</code>: ${esc(p.message)}</li>`).join("");
+    const list = (body.problems || []).map((p) => `<li>${esc(fieldText(p.field, page.room_file))}: ${esc(p.message)}</li>`).join("");
     banner(`<p>Not saved: ${esc(body.message || `HTTP ${res.status}`)}</p>${list ? `<ul>${list}</ul>` : ""}`);
   }
 }
@@ -64,16 +64,20 @@ $("undo").addEventListener("click", () => {
 
 function num(input, label, { min = -Infinity, max = Infinity, blank = false } = {}) {
   const t = String(input.value).trim();
+  if (input.validity && input.validity.badInput) throw new Error(`${label}: enter a number`);  // text in a number box reads as blank
   if (!t && blank) return null;
   const v = Number(t);
   if (!t || !isFinite(v)) throw new Error(`${label}: enter a number`);
   if (v < min || v > max) throw new Error(`${label}: must be between ${min} and ${max}`);
   return v;
 }
-function lengthIn(input, label) {
+function lengthIn(input, label, { positive = false } = {}) {
   const t = String(input.value).trim();
   if (!t) return null;
-  try { return Units.parseLength(t, units); } catch (e) { throw new Error(`${label}: ${e.message}`); }
+  let m;
+  try { m = Units.parseLength(t, units); } catch (e) { throw new Error(`${label}: ${e.message}`); }
+  if (positive ? !(m > 0) : m < 0) throw new Error(`${label}: must be ${positive ? "more than zero" : "zero or more"}`);
+  return m;
 }
 function table(head, rows) {
   return `<table class="figures"><thead><tr>${head.map((h) => `<th>${h}</th>`).join("")}</tr></thead><tbody>${rows.join("")}</tbody></table>`;
@@ -100,7 +104,7 @@ function readSteps(box) {
       week: num(f("week"), `${at} week`, { min: 1, max: 104 }), stage: f("stage").value,
       photoperiod_h: num(f("photoperiod_h"), `${at} photoperiod`, { min: 0.25, max: 24 }),
       canopy_height_m: lengthIn(f("canopy_height_m"), `${at} canopy height`),
-      fixture_height_m: lengthIn(f("fixture_height_m"), `${at} fixture height`),
+      fixture_height_m: lengthIn(f("fixture_height_m"), `${at} fixture height`, { positive: true }),
       dimming_pct: num(f("dimming_pct"), `${at} dimming`, { min: 10, max: 100, blank: true }), ramp: f("ramp").checked,
     };
   });
