@@ -128,6 +128,27 @@ def covering_obstacle(obstacles: Iterable, zone: _Zone):
     return min(over, key=lambda o: o.z_m) if over else None
 
 
+def zones_among(zones: Iterable[_Zone], obstacles: Iterable, fixture: _Fixture) -> list[_Zone]:
+    """Zones whose plants surround the fixture: its centre over the zone, its face below the canopy top and
+    above what the plants stand on (the highest box under the centre whose top is at or below the canopy,
+    such as a shelf board, else the floor)."""
+    obstacles = list(obstacles)
+    out = []
+    for z in zones_under(zones, fixture):
+        if fixture.hanging_height_m >= z.canopy_height_m:
+            continue
+        tops = [
+            o.z_m + o.height_m
+            for o in obstacles
+            if o.x_m <= fixture.x_m <= o.x_m + o.width_m
+            and o.y_m <= fixture.y_m <= o.y_m + o.length_m
+            and o.z_m + o.height_m <= z.canopy_height_m + 1e-9
+        ]
+        if fixture.hanging_height_m > max(tops, default=0.0):
+            out.append(z)
+    return out
+
+
 def highest_hanging_m(room, zone: _Zone) -> float:
     """Highest a fixture over the zone can hang: 1 cm under the shelf covering it, or under the ceiling."""
     shelf = covering_obstacle(room.obstacles, zone)

@@ -121,7 +121,7 @@ def room_warnings(room: Room, basis: dict[str, Any]) -> list[dict[str, Any]]:
                 )
             )
 
-    warnings += off_grid_warnings(room)
+    warnings += off_grid_warnings(room) + among_plants_warnings(room)
 
     for b in basis["types"]:
         if b["beyond_limit"]:
@@ -164,4 +164,26 @@ def off_grid_warnings(room: Room) -> list[dict[str, Any]]:
                 where=[f.x_m, f.y_m, f.x_m, f.y_m],
             )
         )
+    return out
+
+
+def among_plants_warnings(room: Room) -> list[dict[str, Any]]:
+    """Fixtures hung below a canopy's top, among its plants: the map is computed at the canopy top only."""
+    out = []
+    for f in room.fixtures:
+        for z in layout.zones_among(room.zones, room.obstacles, f):
+            out.append(
+                warn(
+                    "fixture_among_plants",
+                    "warning",
+                    f"Fixture {f.id} hangs at {format_length(f.hanging_height_m, room.display_units)}, below the "
+                    f"canopy top of {z.name} ({format_length(z.canopy_height_m, room.display_units)}): among the "
+                    "plants. Leafcast computes the light at the canopy top, so its own light there is missing.",
+                    "Raise it above the canopy (check the hanging height: above the floor, not above the canopy). "
+                    "A bar meant to hang inside the canopy is not modelled that way yet.",
+                    zone=z.id,
+                    fixture=f.id,
+                    where=[f.x_m, f.y_m, f.x_m, f.y_m],
+                )
+            )
     return out

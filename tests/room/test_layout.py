@@ -86,3 +86,22 @@ def test_a_single_bar_is_as_wide_as_its_bar():
     panel = NS(kind="panel", length_m=0.6, width_m=0.6, bar_width_m=0.03)
     assert layout.footprint_size_m(bar) == (1.2, 0.025)
     assert layout.footprint_size_m(panel) == (0.6, 0.6)
+
+
+def test_a_fixture_among_the_plants_is_found_and_warned_but_not_one_under_a_shelf():
+    zone = NS(x_m=0.0, y_m=0.0, width_m=1.0, length_m=1.0, canopy_height_m=0.6)
+    upper = NS(x_m=0.0, y_m=0.0, width_m=1.0, length_m=1.0, canopy_height_m=1.3)
+    board = NS(x_m=0.0, y_m=0.0, z_m=0.95, width_m=1.0, length_m=1.0, height_m=0.03)  # the upper tier's shelf
+
+    def fixture(h):
+        return NS(x_m=0.5, y_m=0.5, hanging_height_m=h)
+
+    assert layout.zones_among([zone], [], fixture(0.3)) == [zone]  # buried in the floor crop
+    assert layout.zones_among([zone], [], fixture(0.7)) == []  # above it
+    # Under the upper tier's shelf, lighting the lower tier: below the upper canopy, but not among its plants.
+    assert layout.zones_among([zone, upper], [board], fixture(0.9)) == []
+    assert layout.zones_among([zone, upper], [board], fixture(1.1)) == [upper]
+    doc = sample_doc("hobby-tent-peppers")
+    doc["room"]["fixtures"][0]["hanging_height_m"] = 0.3048
+    (w,) = [w for w in analyse(parse_room_file(json.dumps(doc)))["warnings"] if w["code"] == "fixture_among_plants"]
+    assert w["severity"] == "warning" and w["fixture_id"] == "F1" and "among the plants" in w["message"]
