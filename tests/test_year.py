@@ -352,3 +352,13 @@ def test_year_with_a_payback_plan_and_every_fixture_off(client, bench_doc, path)
         assert p["now"]["mol_by_year"] == [0.0] * p["horizon_years"]
         assert p["now"]["cost_per_mol"] is None and p["variant"]["cost_per_mol"] is None
         assert p["years"] is None  # nothing saved, the purchase never pays back
+
+
+def test_a_replacement_too_large_for_where_the_fixtures_hang_says_so_in_words(tent_doc):
+    """The 1.1 m array at the tent fixtures' centres would stick out past a wall: the comparison says so
+    instead of showing the room file's field path."""
+    doc = copy.deepcopy(tent_doc)
+    doc["room"]["payback"] = {"variant_type_id": "bararray-8x1.1", "price_per_fixture": 300, "horizon_years": 5}
+    v = year_view("x", parse_room_file(json.dumps(doc)))["payback"]
+    assert v["problem"].startswith("The new type does not fit where the present fixtures hang")
+    assert "room.fixtures" not in v["problem"]

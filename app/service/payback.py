@@ -90,7 +90,11 @@ def payback_report(room_file: RoomFile) -> dict[str, Any] | None:
                 variant, replaced = _variant_room(room_file, scale)
                 var_result = analyse(variant, include_grids=False)
     except RoomFileError as exc:
-        return {"problem": f"the variant is not a valid room: {exc}"}
+        first = exc.problems[0].message if getattr(exc, "problems", None) else str(exc)
+        return {
+            "problem": f"The new type does not fit where the present fixtures hang ({first}): choose a type that "
+            "fits, or move the fixtures in the editor first."
+        }
     now, var = _yearly(room_file, now_result), _yearly(variant, var_result)
     years = plan.horizon_years
     room = room_file.room

@@ -75,7 +75,12 @@ export function payback(page, h) {
   if (!plan) {
     $("payback-form").innerHTML = `<button type="button" id="payback-new">Compare a replacement fixture</button>`;
     $("payback-new").addEventListener("click", () => save((d) => {
-      const other = page.fixture_types.find((t) => !roomTypes.some((r) => r.id === t.id)) || page.fixture_types[0];
+      // Default: a type the room does not have whose footprint is no larger than the largest present one, so it
+      // hangs where the present fixtures are (a longer one could stick out past a wall).
+      const size = (t) => (t.geometry.kind === "point" ? [0, 0] : [t.geometry.length_m || 0, t.geometry.width_m || 0].sort((a, b) => b - a));
+      const big = roomTypes.map(size).reduce((m, s) => [Math.max(m[0], s[0]), Math.max(m[1], s[1])], [0, 0]);
+      const fresh = page.fixture_types.filter((t) => !roomTypes.some((r) => r.id === t.id));
+      const other = fresh.find((t) => size(t)[0] <= big[0] + 1e-9 && size(t)[1] <= big[1] + 1e-9) || fresh[0] || page.fixture_types[0];
       d.room.payback = { variant_type_id: other.id, replace_type_id: null, price_per_fixture: 300, install_cost: 0, horizon_years: 5, discount_rate: 0, match_light: true, rated_hours_now: null, rated_hours_variant: null, hours_run_now: null };
     }, "a replacement to compare"));
     return;
