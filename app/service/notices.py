@@ -121,7 +121,9 @@ def room_warnings(room: Room, basis: dict[str, Any]) -> list[dict[str, Any]]:
                 )
             )
 
-    warnings += off_grid_warnings(room) + among_plants_warnings(room)
+    from app.service.layout_cautions import layout_cautions  # it builds its warnings with warn() from here
+
+    warnings += off_grid_warnings(room) + among_plants_warnings(room) + layout_cautions(room)
 
     for b in basis["types"]:
         if b["beyond_limit"]:

@@ -1,10 +1,10 @@
-// The answer beside the map: per-zone figures, energy and circuits, drawn areas, and the warnings (the server's
-// and the layout cautions found here), with a one-click Apply for warnings that carry a machine-applicable fix.
+// The answer beside the map: per-zone figures, energy and circuits, drawn areas, and the warnings (the server's,
+// layout cautions included: app/service/layout_cautions.py), with a one-click Apply for warnings that carry a
+// machine-applicable fix.
 
 import * as Units from "../lib/units.js";
 import { fmt, pct, share, escapeHtml, stageLabel } from "../lib/format.js";
 import { $, state, room, emit } from "./state.js";
-import { layoutCautions } from "./validate.js";
 import { commit } from "./history.js";
 
 export function renderFigures(a) {
@@ -57,7 +57,7 @@ function meaningful(w, a) {
 
 /**
  * The fix's words and the first verified structured fix the server sent with the warning (``w.fixes``,
- * app/service/advice.py), or null. ``w.fix`` is the sentence; the layout cautions found here carry only words.
+ * app/service/advice.py), or null. ``w.fix`` is the sentence; layout cautions carry only words.
  */
 export function fixOf(w) {
   const text = typeof w.fix === "string" ? w.fix : (w.fix && w.fix.text) || "";
@@ -114,7 +114,7 @@ function applyButton(machine, zoneId) {
 export function renderWarnings(a, plan) {
   const ul = $("warnings");
   ul.innerHTML = "";
-  const list = [...a.warnings.filter((w) => meaningful(w, a)), ...layoutCautions(room(), state.units)];
+  const list = a.warnings.filter((w) => meaningful(w, a));
   if (!list.length) { ul.innerHTML = "<li class='ok'>No warnings: every zone is in its band.</li>"; return; }
   const offered = new Set();
   for (const w of list) {

@@ -1,5 +1,5 @@
-// Checks run in the browser before an edit is applied (the same rules the server enforces, worded with names
-// and the grower's units), and layout cautions the server does not give: fixtures touching or overlapping.
+// Checks run in the browser before an edit is applied: the same rules the server enforces, worded with names
+// and the grower's units. Layout cautions (touching fixtures, walls, shelves) come from the server.
 
 import * as Units from "../lib/units.js";
 import { halfExtent } from "./state.js";
@@ -7,8 +7,6 @@ import { halfExtent } from "./state.js";
 const EDGE_TOLERANCE_M = 0.001;        // the room file's own tolerance at the walls
 const MIN_ABOVE_CANOPY_M = 0.01;       // a fixture hangs at least 1 cm above the canopy it is over
 const MAX_GRID_POINTS = 5_000_000;     // app/room/limits.py
-const TOUCH_GAP_M = 0.005;             // closer than 5 mm counts as touching
-const SAME_LEVEL_M = 0.05;             // fixtures within 5 cm of height can collide
 
 /** Every reason the room cannot be saved, each as {message}: names, not ids; lengths in the chosen units. */
 export function roomProblems(r, units) {
@@ -54,49 +52,3 @@ export function roomProblems(r, units) {
   return out;
 }
 
-function box(f, types) {
-  const [hx, hy] = halfExtent(f, types);
-  return { x0: f.x_m - hx, x1: f.x_m + hx, y0: f.y_m - hy, y1: f.y_m + hy };
-}
-function gap(a, b) {  // separation of two boxes on the plan, negative when they overlap
-  return Math.max(a.x0 - b.x1, b.x0 - a.x1, a.y0 - b.y1, b.y0 - a.y1);
-}
-
-/** Cautions about the layout, as warnings: {severity, message, fix, fixture_id, where}. */
-export function layoutCautions(r, units) {
-  const types = Object.fromEntries(r.fixture_types.map((t) => [t.id, t]));
-  const fx = r.fixtures.filter((f) => types[f.type_id]);
-  const out = [];
-  for (let i = 0; i < fx.length; i++) {
-    const a = fx[i], ba = box(a, types);
-    for (let j = i + 1; j < fx.length; j++) {
-      const b = fx[j];
-      if (Math.abs(a.hanging_height_m - b.hanging_height_m) > SAME_LEVEL_M) continue;
-      const g = gap(ba, box(b, types));
-      if (g < TOUCH_GAP_M) {
-        out.push({ severity: "warning", source: "layout", fixture_id: b.id,
-          message: `Fixtures ${a.id} and ${b.id} ${g < 0 ? "overlap" : "touch"} at the same height.`,
-          fix: "Move one of them apart: fixtures cannot share the same space, and drivers need air around them.",
-          where: [Math.min(ba.x0, a.x_m), Math.min(ba.y0, a.y_m), Math.max(ba.x1, b.x_m), Math.max(ba.y1, b.y_m)] });
-      }
-    }
-    const wall = Math.min(ba.x0, ba.y0, r.width_m - ba.x1, r.length_m - ba.y1);
-    if (wall < TOUCH_GAP_M && !r.open_sides.length) {
-      out.push({ severity: "info", source: "layout", fixture_id: a.id,
-        message: `Fixture ${a.id} touches a wall (closer than ${Units.length(TOUCH_GAP_M, units, { fine: true })}).`,
-        fix: "Leave a gap for air and for hanging hardware; check the fixture's instructions for clearances.",
-        where: [ba.x0, ba.y0, ba.x1, ba.y1] });
-    }
-    for (const o of r.obstacles) {
-      const ob = { x0: o.x_m, x1: o.x_m + o.width_m, y0: o.y_m, y1: o.y_m + o.length_m };
-      const vertical = Math.max(o.z_m - a.hanging_height_m, a.hanging_height_m - (o.z_m + o.height_m));
-      if (gap(ba, ob) < 0 && vertical < TOUCH_GAP_M) {
-        out.push({ severity: "warning", source: "layout", fixture_id: a.id,
-          message: `Fixture ${a.id} touches ${o.name} (${Units.length(Math.max(vertical, 0), units, { fine: true })} apart).`,
-          fix: "Hang it lower or move it: a fixture needs air around its driver and must not rest on a shelf.",
-          where: [ba.x0, ba.y0, ba.x1, ba.y1] });
-      }
-    }
-  }
-  return out;
-}
