@@ -29,6 +29,7 @@ from app.engine.distributions import lambertian
 from app.engine.emitters import local_nodes
 from app.engine.mirror_images import image_list, mirror_coordinate
 from app.engine.scene import Box, Emitter, Enclosure, Grid
+from app.engine.tier_cover import covering_box
 from app.room.roomfile import parse_room_file
 from app.service.farm import vertical_farm
 from app.service.scene_builder import EngineScene, build_scene
@@ -78,7 +79,7 @@ def brute_force(scene: EngineScene) -> list[np.ndarray]:
         pts = np.column_stack([gx.ravel(), gy.ravel(), np.full(gx.size, g.z_m)])
         total = np.zeros(pts.shape[0])
         for e in scene.emitters:
-            if not compute.lights_grid(e, g, compute.covering_height_m(g, scene.boxes)):
+            if not compute.lights_grid(e, g, covering_box(g, scene.boxes), scene.enclosure):
                 continue
             nodes, flux = _dense_nodes(e)
             near = direct.relevant_boxes(e, g, scene.boxes, 1e9)

@@ -24,11 +24,12 @@ from dataclasses import dataclass, field, replace
 import numpy as np
 
 from app.engine import mirror_images as rf
-from app.engine.compute import covering_height_m, lights_grid, reference_drop_m
+from app.engine.compute import lights_grid, reference_drop_m
 from app.engine.direct import CULL_RELATIVE, cull_radius_m, nearest_distance_m, relevant_boxes
 from app.engine.emitters import local_nodes
 from app.engine.radiosity import wall_patches
 from app.engine.scene import Emitter, Grid
+from app.engine.tier_cover import covering_box, direct_reaches, images_past_cover
 from app.room.models import Room
 from app.service.scene_builder import build_scene
 
@@ -93,14 +94,14 @@ def _node_count(e: Emitter, nearest_m: float, shadowed: bool = False) -> int:
     return local_nodes(e, nearest_m, shadowed)[0].size
 
 
-def _direct_terms(e: Emitter, g: Grid, boxes, ref_drop: float | None, units: dict, shared: set) -> None:
+def _direct_terms(e: Emitter, g: Grid, boxes, ref_drop: float | None, units: dict, shared: set, cover=None) -> None:
     dz = e.z_m - g.z_m
     relative = CULL_RELATIVE * (dz / min(ref_drop or dz, dz)) ** 2
     if dz <= 0 or relative >= 1.0:
         return
     reach = cull_radius_m(e.distribution, dz, relative) + 0.5 * e.largest_dimension_m
     pts = _window_points(e, g, reach)
-    if pts == 0:
+    if pts == 0 or not direct_reaches(e, g, cover, reach):
         return
     near = relevant_boxes(e, g, boxes, reach)
     units["footprint_adds"] += pts
@@ -132,8 +133,8 @@ def _direct_terms(e: Emitter, g: Grid, boxes, ref_drop: float | None, units: dic
         units["direct_evaluations"] += _node_count(e, dz) * pts
 
 
-def _image_terms(e: Emitter, g: Grid, enc, units: dict) -> None:
-    images = rf.image_list(e, g, enc)
+def _image_terms(e: Emitter, g: Grid, enc, units: dict, cover=None) -> None:
+    images = images_past_cover(e, g, enc, cover, rf.image_list(e, g, enc))
     if not images:
         return
     points = g.nx * g.ny
@@ -158,17 +159,18 @@ def estimate(room: Room) -> CostEstimate:
     scene = build_scene(room)
     emitters, grids, enc, boxes = scene.emitters, scene.grids, scene.enclosure, scene.boxes
     units = dict.fromkeys(NS_PER, 0.0)
-    covers = {g: covering_height_m(g, boxes) for g in grids}
+    covers = {g: covering_box(g, boxes) for g in grids}
     shared: set = set()
     specular = enc.has_specular
     for e in emitters:
-        ref = reference_drop_m(e, grids, covers)
-        for g in grids:
-            if not lights_grid(e, g, covers[g]):
+        lit = [lights_grid(e, g, covers[g], enc) for g in grids]
+        ref = reference_drop_m(e, grids, lit)
+        for g, on in zip(grids, lit, strict=True):
+            if not on:
                 continue
-            _direct_terms(e, g, boxes, ref, units, shared)
+            _direct_terms(e, g, boxes, ref, units, shared, covers[g])
             if specular:
-                _image_terms(e, g, enc, units)
+                _image_terms(e, g, enc, units, covers[g])
     points = sum(g.nx * g.ny for g in grids)
     if enc.has_diffuse and emitters:
         n_patches = len(wall_patches(enc).areas)
