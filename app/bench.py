@@ -40,6 +40,7 @@ def clear_fixture_caches() -> None:
     compute.fixture_on_grid.cache_clear()
     compute._fixture_on_patches.cache_clear()
     direct._stamp.cache_clear()
+    compute._local_sideways.cache_clear()
 
 
 def clear_all_caches() -> None:

@@ -17,7 +17,7 @@ from app.engine.mirror_images import image_list, specular_map
 from app.engine.patch_transfer import diffuse_map
 from app.engine.radiosity import patch_irradiance, radiosity_operator
 from app.engine.scene import Box, Emitter, Enclosure, Grid
-from app.engine.sideways import sideways_patch
+from app.engine.sideways import _local_sideways, sideways_patch
 from app.engine.tier_cover import covering_box, direct_matrix, direct_reaches, hangs_below, images_past_cover
 
 
@@ -165,4 +165,5 @@ def compute_scene(
 
 def clear_caches() -> None:
     fixture_on_grid.cache_clear()
+    _local_sideways.cache_clear()
     _fixture_on_patches.cache_clear()

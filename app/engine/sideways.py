@@ -12,10 +12,11 @@ engine's one shadow test, app/engine/shadows.py, with the penumbra-resolving nod
 
 from __future__ import annotations
 
-from dataclasses import replace
+from dataclasses import dataclass, replace
 
 import numpy as np
 
+from app.engine.cache import MIB, memoise
 from app.engine.direct import (
     CULL_RELATIVE,
     Patch,
@@ -37,19 +38,95 @@ SIDEWAYS_SHADOW_SUBDIVISION = 2.0
 """Penumbra nodes this much closer than the open-air ones (direct light under a shelf: 6, mirror images: 1)."""
 
 
+def element_extent_m(emitter: Emitter) -> tuple[float, float]:
+    """Extent along x and y of the emitter's narrowest emitting element (one bar, the panel; 0 for a point) [m]."""
+    if emitter.shape == "point":
+        return 0.0, 0.0
+    across = (
+        emitter.width_m if emitter.shape == "panel" else min(emitter.bar_width_m or emitter.width_m, emitter.width_m)
+    )
+    a = np.radians(emitter.rotation_deg)
+    c, s = abs(np.cos(a)), abs(np.sin(a))
+    return emitter.length_m * c + across * s, emitter.length_m * s + across * c
+
+
+def sample_steps(emitter: Emitter, grid: Grid, near: tuple[Box, ...], nearest_m: float) -> tuple[int, int]:
+    """Sample strides along x and y [grid spacings].
+
+    At most nearest/SAMPLES_PER_DISTANCE (the open-air field's scale), and at most half the narrowest penumbra a
+    box edge can cast along that axis: an element of extent a seen past an edge h above the canopy from H above it
+    casts a penumbra a·h/(H − h) wide (similar triangles), and a bar array's bars each cast their own, so the
+    shadow climbs in steps as each bar comes into view.
+    """
+    h = min((max(b.z0_m - grid.z_m, 0.0) for b in near), default=np.inf)
+    big_h = emitter.z_m - grid.z_m
+    steps = []
+    for a in element_extent_m(emitter):
+        width = a * h / max(big_h - h, 1e-9) if np.isfinite(h) else np.inf
+        step_m = min(nearest_m / SAMPLES_PER_DISTANCE, 0.5 * width)
+        steps.append(max(1, int(step_m / grid.spacing_m)))
+    return steps[0], steps[1]
+
+
+@dataclass(frozen=True)
+class SharedPatch(Patch):
+    """A Patch whose values another cache owns (the shared sideways footprint): it holds no memory of its own."""
+
+    def cache_bytes(self) -> int:
+        return 128
+
+
 def sideways_patch(
     emitter: Emitter,
     grid: Grid,
     boxes: tuple[Box, ...],
     cover: Box,
     reference_drop_m: float | None = None,
-    dtype=np.float32,
 ) -> Patch | None:
     """Direct irradiance [µmol m⁻² s⁻¹] of an emitter above ``cover`` on the covered grid, or None.
 
     The cull tolerance is that of app.engine.direct.direct_patch (CULL_RELATIVE of the emitter's peak at
     ``reference_drop_m``), so a tier gets the same share of every emitter's light whichever way it comes.
+    The footprint depends only on where the emitter, the boxes and the grid are relative to each other, so it is
+    computed in a frame at the grid point next to the emitter and at the canopy's height: identical fixtures in
+    identical racks (a vertical farm's rows, and its tiers, one above the other) share one computation.
     """
+    xs, ys, s = grid.x_m, grid.y_m, grid.spacing_m
+    dz = emitter.z_m - grid.z_m
+    relative = CULL_RELATIVE * (dz / min(reference_drop_m or dz, dz)) ** 2 if dz > 0 else 1.0
+    if relative >= 1.0:
+        return None
+    reach = cull_radius_m(emitter.distribution, dz, relative) + 0.5 * emitter.largest_dimension_m
+    if (
+        abs(emitter.x_m - (grid.x0_m + grid.width_m / 2)) > reach + grid.width_m / 2
+        or abs(emitter.y_m - (grid.y0_m + grid.length_m / 2)) > reach + grid.length_m / 2
+    ):
+        return None  # out of reach: decided before the shared frame is built
+    ox = float(xs[0] + s * np.floor((emitter.x_m - xs[0]) / s + 1e-6))
+    oy = float(ys[0] + s * np.floor((emitter.y_m - ys[0]) / s + 1e-6))
+    oz = grid.z_m
+
+    def moved(b: Box) -> Box:
+        return Box(
+            round(b.x0_m - ox, 9),
+            round(b.y0_m - oy, 9),
+            round(b.z0_m - oz, 9),
+            round(b.x1_m - ox, 9),
+            round(b.y1_m - oy, 9),
+            round(b.z1_m - oz, 9),
+        )
+
+    near = relevant_boxes(emitter, grid, boxes, reach)
+    local = replace(emitter, id="", x_m=round(emitter.x_m - ox, 9), y_m=round(emitter.y_m - oy, 9), z_m=round(dz, 9))
+    frame = replace(grid, id="", x0_m=round(grid.x0_m - ox, 9), y0_m=round(grid.y0_m - oy, 9), z_m=0.0)
+    ref = None if reference_drop_m is None else round(reference_drop_m, 9)
+    found = _local_sideways(local, frame, tuple(moved(b) for b in near), moved(cover), ref)
+    return None if found is None else SharedPatch(found.i0, found.j0, found.values)
+
+
+@memoise("sideways_footprints", max_bytes=96 * MIB)
+def _local_sideways(emitter: Emitter, grid: Grid, boxes, cover: Box, reference_drop_m, dtype=np.float32):
+    """:func:`sideways_patch` in the frame where it is shared (grid point next to the emitter, canopy at z = 0)."""
     dz = emitter.z_m - grid.z_m
     if dz <= 0:
         return None
@@ -67,19 +144,27 @@ def sideways_patch(
         return None
     part = replace(grid, x0_m=band[0], y0_m=band[1], width_m=band[2] - band[0], length_m=band[3] - band[1])
     nearest = max(nearest_distance_m(emitter, part), 1e-6)
-    step = max(1, int(nearest / (SAMPLES_PER_DISTANCE * grid.spacing_m)))
-    sx, sy = _strided(xs[i0:i1], step), _strided(ys[j0:j1], step)
+    near = relevant_boxes(emitter, grid, boxes, reach)
+    step_x, step_y = sample_steps(emitter, grid, near, nearest)
+    sx, sy = _strided(xs[i0:i1], step_x), _strided(ys[j0:j1], step_y)
     gx, gy = np.meshgrid(sx, sy)
     pts = np.column_stack([gx.ravel(), gy.ravel(), np.full(gx.size, grid.z_m)])
     nodes, flux = world_nodes(emitter, nearest)
-    values = irradiance_from_nodes(pts, nodes, flux, emitter.distribution, emitter.rotation_deg)
-    near = relevant_boxes(emitter, grid, boxes, reach)
-    relight_shadowed(
-        values, pts, emitter, nearest, near, emitter.flux_umol_s, subdivision=SIDEWAYS_SHADOW_SUBDIVISION
-    )
-    values = values.reshape(gx.shape)
-    if step > 1:
-        values = _bilinear(sx, sy, values, xs[i0:i1], ys[j0:j1])
+    open_air = irradiance_from_nodes(pts, nodes, flux, emitter.distribution, emitter.rotation_deg)
+    lit = open_air.copy()
+    relight_shadowed(lit, pts, emitter, nearest, near, emitter.flux_umol_s, subdivision=SIDEWAYS_SHADOW_SUBDIVISION)
+    if step_x == step_y == 1:
+        values = lit.reshape(gx.shape)
+    else:
+        # The open-air field and the share of it the boxes leave are each smooth: interpolate them apart (the share
+        # runs nearly straight across a penumbra, where the product curves).
+        seen = np.divide(lit, open_air, out=np.zeros_like(lit), where=open_air > 0)
+        fine_x, fine_y = xs[i0:i1], ys[j0:j1]
+        values = _bilinear(sx, sy, open_air.reshape(gx.shape), fine_x, fine_y) * _bilinear(
+            sx, sy, seen.reshape(gx.shape), fine_x, fine_y
+        )
     if not np.any(values > 0):
         return None
-    return Patch(i0, j0, np.maximum(values, 0.0).astype(dtype))
+    out = np.maximum(values, 0.0).astype(dtype)
+    out.setflags(write=False)
+    return Patch(i0, j0, out)

@@ -98,7 +98,9 @@ def crossing_rect(emitter: Emitter, grid: Grid, cover: Box, reach_m: float | Non
 
 
 def _inside(rect, x0, y0, x1, y1) -> bool:
-    return rect[0] >= x0 - INSIDE_M and rect[1] >= y0 - INSIDE_M and rect[2] <= x1 + INSIDE_M and rect[3] <= y1 + INSIDE_M
+    return (
+        rect[0] >= x0 - INSIDE_M and rect[1] >= y0 - INSIDE_M and rect[2] <= x1 + INSIDE_M and rect[3] <= y1 + INSIDE_M
+    )
 
 
 def direct_reaches(emitter: Emitter, grid: Grid, cover: Box | None, reach_m: float | None = None) -> bool:
