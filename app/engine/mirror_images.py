@@ -107,7 +107,12 @@ def _bilinear(xc, yc, vals, xf, yf):
 
 
 def specular_map(
-    emitter: Emitter, grid: Grid, enc: Enclosure, boxes: tuple[Box, ...] = (), dtype=np.float32, cover: Box | None = None
+    emitter: Emitter,
+    grid: Grid,
+    enc: Enclosure,
+    boxes: tuple[Box, ...] = (),
+    dtype=np.float32,
+    cover: Box | None = None,
 ):
     """Irradiance [µmol m⁻² s⁻¹] on ``grid`` from the emitter's mirror images (shape ny × nx).
 

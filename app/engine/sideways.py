@@ -32,7 +32,7 @@ from app.engine.mirror_images import _bilinear, _strided
 from app.engine.scene import Box, Emitter, Grid
 from app.engine.tier_cover import direct_reaches, lit_band
 
-SAMPLES_PER_DISTANCE = 8
+SAMPLES_PER_DISTANCE = 4
 """Samples per nearest distance from the emitter to the lit band (near mirror images use the same)."""
 SIDEWAYS_SHADOW_SUBDIVISION = 2.0
 """Penumbra nodes this much closer than the open-air ones (direct light under a shelf: 6, mirror images: 1)."""
@@ -63,7 +63,7 @@ def sample_steps(emitter: Emitter, grid: Grid, near: tuple[Box, ...], nearest_m:
     steps = []
     for a in element_extent_m(emitter):
         width = a * h / max(big_h - h, 1e-9) if np.isfinite(h) else np.inf
-        step_m = min(nearest_m / SAMPLES_PER_DISTANCE, 0.5 * width)
+        step_m = min(nearest_m / SAMPLES_PER_DISTANCE, width)
         steps.append(max(1, int(step_m / grid.spacing_m)))
     return steps[0], steps[1]
 
