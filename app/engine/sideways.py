@@ -4,9 +4,13 @@ Such an emitter (on the shelf above, over the floor beside the rack, in the next
 the shelf's edges (app/engine/tier_cover.py rejects the ones that cannot, and bounds the band of the tier that can
 be lit). Nearly every point of that band lies in some box's shadow, so the open-air footprint shared by identical
 fixtures saves nothing here; instead the light is computed on samples of the band and interpolated, as the near
-mirror images are (app/engine/mirror_images.py): the emitter is at least ``nearest`` from every point, so its
-open-air field is smooth on that scale, and the shelf edge's shadow is as soft as the emitter's width seen over the
-gap between shelf and canopy. Every sample is shadow-tested against every box that can stand in the way (the
+mirror images are (app/engine/mirror_images.py). Samples are at most a quarter of the emitter's distance apart (its
+open-air field is smooth on that scale) and at most one penumbra apart along each axis (:func:`sample_steps`; a bar
+array seen past a shelf edge casts one sharp step per bar, so across its bars every map point is computed); the
+open-air field and the share of it the boxes leave are interpolated apart, the share running nearly straight across
+a penumbra. Against the Monte Carlo reference of tests/engine/test_covered_tiers.py: tier mean within 1 %, 10 cm
+columns within 4 %. A footprint depends only on where emitter, boxes and grid are relative to each other, so it is
+memoised in that frame and identical racks and tiers share it. Every sample is shadow-tested against every box that can stand in the way (the
 engine's one shadow test, app/engine/shadows.py, with the penumbra-resolving nodes of app/engine/penumbra.py).
 """
 
@@ -33,7 +37,7 @@ from app.engine.scene import Box, Emitter, Grid
 from app.engine.tier_cover import direct_reaches, lit_band
 
 SAMPLES_PER_DISTANCE = 4
-"""Samples per nearest distance from the emitter to the lit band (near mirror images use the same)."""
+"""Samples per nearest distance from the emitter to the lit band (near mirror images use 8)."""
 SIDEWAYS_SHADOW_SUBDIVISION = 2.0
 """Penumbra nodes this much closer than the open-air ones (direct light under a shelf: 6, mirror images: 1)."""
 
@@ -53,7 +57,7 @@ def element_extent_m(emitter: Emitter) -> tuple[float, float]:
 def sample_steps(emitter: Emitter, grid: Grid, near: tuple[Box, ...], nearest_m: float) -> tuple[int, int]:
     """Sample strides along x and y [grid spacings].
 
-    At most nearest/SAMPLES_PER_DISTANCE (the open-air field's scale), and at most half the narrowest penumbra a
+    At most nearest/SAMPLES_PER_DISTANCE (the open-air field's scale), and at most the narrowest penumbra a
     box edge can cast along that axis: an element of extent a seen past an edge h above the canopy from H above it
     casts a penumbra a·h/(H − h) wide (similar triangles), and a bar array's bars each cast their own, so the
     shadow climbs in steps as each bar comes into view.
