@@ -41,6 +41,7 @@ def clear_fixture_caches() -> None:
     compute._fixture_on_patches.cache_clear()
     direct._stamp.cache_clear()
     compute._local_sideways.cache_clear()
+    compute._images_reach.cache_clear()
 
 
 def clear_all_caches() -> None:

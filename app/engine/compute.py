@@ -18,7 +18,14 @@ from app.engine.patch_transfer import diffuse_map
 from app.engine.radiosity import patch_irradiance, radiosity_operator
 from app.engine.scene import Box, Emitter, Enclosure, Grid
 from app.engine.sideways import _local_sideways, sideways_patch
-from app.engine.tier_cover import covering_box, direct_matrix, direct_reaches, hangs_below, images_past_cover
+from app.engine.tier_cover import (
+    covering_box,
+    direct_matrix,
+    direct_reaches,
+    hangs_below,
+    images_past_cover,
+    spans_room,
+)
 
 
 class SceneError(ValueError):
@@ -73,8 +80,14 @@ def lights_grid(emitter: Emitter, grid: Grid, cover: Box | None, enc: Enclosure 
     """
     if direct_reaches(emitter, grid, cover):
         return True
-    if enc is None or not enc.has_specular or emitter.z_m <= grid.z_m:
+    if enc is None or not enc.has_specular or emitter.z_m <= grid.z_m or spans_room(cover, enc):
         return False
+    return _images_reach(emitter, grid, enc, cover)
+
+
+@memoise("images_past_cover", max_bytes=4 * MIB)
+def _images_reach(emitter: Emitter, grid: Grid, enc: Enclosure, cover: Box) -> bool:
+    """Whether some mirror image of the emitter reaches the grid past the cover (listing images costs ms)."""
     return bool(images_past_cover(emitter, grid, enc, cover, image_list(emitter, grid, enc)))
 
 
@@ -166,4 +179,5 @@ def compute_scene(
 def clear_caches() -> None:
     fixture_on_grid.cache_clear()
     _local_sideways.cache_clear()
+    _images_reach.cache_clear()
     _fixture_on_patches.cache_clear()

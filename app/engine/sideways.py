@@ -29,10 +29,10 @@ from app.engine.direct import (
     irradiance_from_nodes,
     nearest_distance_m,
     relevant_boxes,
-    relight_shadowed,
 )
 from app.engine.emitters import world_nodes
 from app.engine.mirror_images import _bilinear, _strided
+from app.engine.penumbra import shadowed_irradiance
 from app.engine.scene import Box, Emitter, Grid
 from app.engine.tier_cover import direct_reaches, lit_band
 
@@ -155,8 +155,12 @@ def _local_sideways(emitter: Emitter, grid: Grid, boxes, cover: Box, reference_d
     pts = np.column_stack([gx.ravel(), gy.ravel(), np.full(gx.size, grid.z_m)])
     nodes, flux = world_nodes(emitter, nearest)
     open_air = irradiance_from_nodes(pts, nodes, flux, emitter.distribution, emitter.rotation_deg)
-    lit = open_air.copy()
-    relight_shadowed(lit, pts, emitter, nearest, near, emitter.flux_umol_s, subdivision=SIDEWAYS_SHADOW_SUBDIVISION)
+    # Nearly every sample lies in some box's shadow: all go to the penumbra integration (no candidate pass).
+    lit = (
+        shadowed_irradiance(pts, emitter, nearest, near, emitter.flux_umol_s, subdivision=SIDEWAYS_SHADOW_SUBDIVISION)
+        if near
+        else open_air
+    )
     if step_x == step_y == 1:
         values = lit.reshape(gx.shape)
     else:
