@@ -80,18 +80,11 @@ class SharedPatch(Patch):
         return 128
 
 
-def sideways_patch(
-    emitter: Emitter,
-    grid: Grid,
-    boxes: tuple[Box, ...],
-    cover: Box,
-    reference_drop_m: float | None = None,
-) -> Patch | None:
-    """Direct irradiance [µmol m⁻² s⁻¹] of an emitter above ``cover`` on the covered grid, or None.
+def shared_frame(emitter: Emitter, grid: Grid, boxes: tuple[Box, ...], cover: Box, reference_drop_m=None):
+    """(emitter, grid, boxes, cover, reference drop) moved to the frame where sideways footprints are shared, or
+    None when the emitter is out of reach of the grid.
 
-    The cull tolerance is that of app.engine.direct.direct_patch (CULL_RELATIVE of the emitter's peak at
-    ``reference_drop_m``), so a tier gets the same share of every emitter's light whichever way it comes.
-    The footprint depends only on where the emitter, the boxes and the grid are relative to each other, so it is
+    A footprint depends only on where the emitter, the boxes and the grid are relative to each other, so it is
     computed in a frame at the grid point next to the emitter and at the canopy's height: identical fixtures in
     identical racks (a vertical farm's rows, and its tiers, one above the other) share one computation.
     """
@@ -124,20 +117,30 @@ def sideways_patch(
     local = replace(emitter, id="", x_m=round(emitter.x_m - ox, 9), y_m=round(emitter.y_m - oy, 9), z_m=round(dz, 9))
     frame = replace(grid, id="", x0_m=round(grid.x0_m - ox, 9), y0_m=round(grid.y0_m - oy, 9), z_m=0.0)
     ref = None if reference_drop_m is None else round(reference_drop_m, 9)
-    found = _local_sideways(local, frame, tuple(moved(b) for b in near), moved(cover), ref)
+    return local, frame, tuple(moved(b) for b in near), moved(cover), ref
+
+
+def sideways_patch(
+    emitter: Emitter,
+    grid: Grid,
+    boxes: tuple[Box, ...],
+    cover: Box,
+    reference_drop_m: float | None = None,
+) -> Patch | None:
+    """Direct irradiance [µmol m⁻² s⁻¹] of an emitter above ``cover`` on the covered grid, or None.
+
+    The cull tolerance is that of app.engine.direct.direct_patch (CULL_RELATIVE of the emitter's peak at
+    ``reference_drop_m``), so a tier gets the same share of every emitter's light whichever way it comes.
+    """
+    key = shared_frame(emitter, grid, boxes, cover, reference_drop_m)
+    found = None if key is None else _local_sideways(*key)
     return None if found is None else SharedPatch(found.i0, found.j0, found.values)
 
 
-@memoise("sideways_footprints", max_bytes=96 * MIB)
-def _local_sideways(emitter: Emitter, grid: Grid, boxes, cover: Box, reference_drop_m, dtype=np.float32):
-    """:func:`sideways_patch` in the frame where it is shared (grid point next to the emitter, canopy at z = 0)."""
-    dz = emitter.z_m - grid.z_m
-    if dz <= 0:
-        return None
-    relative = CULL_RELATIVE * (dz / min(reference_drop_m or dz, dz)) ** 2
-    if relative >= 1.0:
-        return None
-    reach = cull_radius_m(emitter.distribution, dz, relative) + 0.5 * emitter.largest_dimension_m
+def sideways_plan(emitter: Emitter, grid: Grid, boxes, cover: Box, relative: float):
+    """((i0, i1, j0, j1) window of the lit band, (step_x, step_y) sample strides, nearest distance [m], boxes in the
+    way), or None when the emitter lights nothing of the grid (also what the cost estimate counts)."""
+    reach = cull_radius_m(emitter.distribution, emitter.z_m - grid.z_m, relative) + 0.5 * emitter.largest_dimension_m
     band = lit_band(emitter, grid, cover, reach) if direct_reaches(emitter, grid, cover, reach) else None
     if band is None:
         return None
@@ -150,6 +153,23 @@ def _local_sideways(emitter: Emitter, grid: Grid, boxes, cover: Box, reference_d
     nearest = max(nearest_distance_m(emitter, part), 1e-6)
     near = relevant_boxes(emitter, grid, boxes, reach)
     step_x, step_y = sample_steps(emitter, grid, near, nearest)
+    return (i0, i1, j0, j1), (step_x, step_y), nearest, near
+
+
+@memoise("sideways_footprints", max_bytes=96 * MIB)
+def _local_sideways(emitter: Emitter, grid: Grid, boxes, cover: Box, reference_drop_m, dtype=np.float32):
+    """:func:`sideways_patch` in the frame where it is shared (grid point next to the emitter, canopy at z = 0)."""
+    dz = emitter.z_m - grid.z_m
+    if dz <= 0:
+        return None
+    relative = CULL_RELATIVE * (dz / min(reference_drop_m or dz, dz)) ** 2
+    if relative >= 1.0:
+        return None
+    plan = sideways_plan(emitter, grid, boxes, cover, relative)
+    if plan is None:
+        return None
+    (i0, i1, j0, j1), (step_x, step_y), nearest, near = plan
+    xs, ys = grid.x_m, grid.y_m
     sx, sy = _strided(xs[i0:i1], step_x), _strided(ys[j0:j1], step_y)
     gx, gy = np.meshgrid(sx, sy)
     pts = np.column_stack([gx.ravel(), gy.ravel(), np.full(gx.size, grid.z_m)])
