@@ -165,3 +165,27 @@ def test_shelf_over_the_whole_rack_hides_the_fixtures_above_it():
     both = compute_scene((STRIP, top), (g,), enc, (Box(*SHELF),))[0].ppfd
     strip = compute_scene((STRIP,), (g,), enc, (Box(*SHELF),))[0].ppfd
     np.testing.assert_array_equal(both, strip)
+
+
+def test_racks_light_each_other_across_the_aisle_symmetrically_and_share_the_work():
+    # Three identical racks in a dark room (a small generated farm): the outer two are mirror images of each other
+    # (each has one neighbour, on opposite sides), so their tiers' maps must be mirror images too; the upper fixtures
+    # of a rack never reach its own lower tiers (its shelves span them); the next rack's do, across the aisle.
+    from app.engine import compute
+    from app.engine.tier_cover import covering_box, direct_matrix
+    from app.service.farm import vertical_farm
+    from app.service.scene_builder import build_scene
+
+    s = build_scene(vertical_farm(rows=3, tiers=3, fixtures_per_tier=2, rack_length_m=2.8, grid_spacing_m=0.1).room)
+    clear_caches()
+    maps = {z.grid.id: z.ppfd for z in compute_scene(s.emitters, s.grids, s.enclosure, s.boxes)}
+    for k in range(3):
+        np.testing.assert_allclose(maps[f"r0-t{k}"], maps[f"r2-t{k}"][:, ::-1], rtol=1e-4, atol=1e-3)
+    lit = direct_matrix(s.emitters, s.grids, tuple(covering_box(g, s.boxes) for g in s.grids))
+    ids = [e.id for e in s.emitters]
+    bottom = [g.id for g in s.grids].index("r1-t0")
+    assert not lit[bottom, ids.index("r1-t2-f0")]  # its own rack's top fixture: hidden by its own shelves
+    assert lit[bottom, ids.index("r0-t2-f0")]  # the next rack's: seen through the open side
+    assert maps["r1-t0"].mean() > maps["r0-t0"].mean() > maps["r0-t2"].mean()  # two neighbours, one, none above
+    stats = compute._local_sideways.cache.stats()
+    assert stats.hits > 0  # identical racks and tiers share their sideways footprints
