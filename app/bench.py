@@ -30,6 +30,7 @@ from app.engine.direct import irradiance_from_nodes
 from app.engine.emitters import local_nodes
 from app.engine.mirror_images import image_list, mirror_coordinate
 from app.engine.scene import Box
+from app.engine.tier_cover import covering_box
 from app.room.roomfile import parse_room_file
 from app.service.farm import vertical_farm
 from app.service.scene_builder import EngineScene, build_scene
@@ -39,6 +40,8 @@ def clear_fixture_caches() -> None:
     compute.fixture_on_grid.cache_clear()
     compute._fixture_on_patches.cache_clear()
     direct._stamp.cache_clear()
+    compute._local_sideways.cache_clear()
+    compute._images_reach.cache_clear()
 
 
 def clear_all_caches() -> None:
@@ -76,7 +79,7 @@ def brute_force(scene: EngineScene) -> list[np.ndarray]:
         pts = np.column_stack([gx.ravel(), gy.ravel(), np.full(gx.size, g.z_m)])
         total = np.zeros(pts.shape[0])
         for e in scene.emitters:
-            if not compute.lights_grid(e, g, compute.covering_height_m(g, scene.boxes)):
+            if not compute.lights_grid(e, g, covering_box(g, scene.boxes), scene.enclosure):
                 continue
             nodes, flux = _dense_nodes(e)
             near = direct.relevant_boxes(e, g, scene.boxes, 1e9)

@@ -26,6 +26,9 @@ def result_bytes(obj, _depth: int = 0) -> int:
     """Approximate memory held by a cached result: numpy buffers, plus containers and plain objects."""
     if _depth > 4:
         return 0
+    own = getattr(obj, "cache_bytes", None)
+    if callable(own):  # an object that says what it holds (a view of values another cache owns holds none)
+        return int(own())
     if isinstance(obj, np.ndarray):
         return int(obj.nbytes) + 112
     if isinstance(obj, tuple | list):

@@ -13,11 +13,19 @@ import numpy as np
 
 from app.engine.cache import MIB, memoise
 from app.engine.direct import Patch, direct_patch
-from app.engine.mirror_images import specular_map
+from app.engine.mirror_images import image_list, specular_map
 from app.engine.patch_transfer import diffuse_map
 from app.engine.radiosity import patch_irradiance, radiosity_operator
 from app.engine.scene import Box, Emitter, Enclosure, Grid
-from app.room.layout import covers_from_above  # pure numbers: the one layout rule's tolerance
+from app.engine.sideways import _local_sideways, sideways_patch
+from app.engine.tier_cover import (
+    covering_box,
+    direct_matrix,
+    direct_reaches,
+    hangs_below,
+    images_past_cover,
+    spans_room,
+)
 
 
 class SceneError(ValueError):
@@ -60,39 +68,43 @@ def check_scene(emitters, grids, boxes) -> None:
 
 def covering_height_m(grid: Grid, boxes: tuple[Box, ...]) -> float:
     """Bottom of the lowest box that covers the whole grid from above (a shelf over a tier), or inf."""
-    over = [
-        b.z0_m
-        for b in boxes
-        if covers_from_above(
-            b.x0_m,
-            b.y0_m,
-            b.x1_m,
-            b.y1_m,
-            b.z0_m,
-            grid.x0_m,
-            grid.y0_m,
-            grid.x0_m + grid.width_m,
-            grid.y0_m + grid.length_m,
-            grid.z_m,
-        )
-    ]
-    return min(over, default=np.inf)
+    cover = covering_box(grid, boxes)
+    return cover.z0_m if cover is not None else np.inf
 
 
-def lights_grid(emitter: Emitter, grid: Grid, cover_m: float) -> bool:
-    """Whether the emitter can light the grid at all.
+def lights_grid(emitter: Emitter, grid: Grid, cover: Box | None, enc: Enclosure | None = None) -> bool:
+    """Whether the emitter can light the grid at all, directly or (``enc`` given) by a mirror image.
 
-    A tier covered by a shelf is lit by the fixtures hung below that shelf. Light
-    from fixtures above the shelf could reach it only sideways through the tier's
-    open sides; that light is neglected (its size is measured in
-    tests/engine/test_reflections.py and stated in the README).
+    Every emitter above the canopy does, except one above the shelf covering a tier whose every segment to
+    the tier enters that shelf (the cheap test of app/engine/tier_cover.py); the rest are shadow-tested.
     """
-    return grid.z_m < emitter.z_m < cover_m + 1e-9
+    if direct_reaches(emitter, grid, cover):
+        return True
+    if enc is None or not enc.has_specular or emitter.z_m <= grid.z_m or spans_room(cover, enc):
+        return False
+    return _images_reach(emitter, grid, enc, cover)
 
 
-def reference_drop_m(emitter: Emitter, grids: tuple[Grid, ...], covers: dict[Grid, float]) -> float | None:
-    """The emitter's smallest drop to a grid it lights: the cull tolerance is set there."""
-    drops = [emitter.z_m - g.z_m for g in grids if lights_grid(emitter, g, covers[g])]
+@memoise("images_past_cover", max_bytes=4 * MIB)
+def _images_reach(emitter: Emitter, grid: Grid, enc: Enclosure, cover: Box) -> bool:
+    """Whether some mirror image of the emitter reaches the grid past the cover (listing images costs ms)."""
+    return bool(images_past_cover(emitter, grid, enc, cover, image_list(emitter, grid, enc)))
+
+
+def lights_matrix(emitters, grids, covers, enc: Enclosure) -> np.ndarray:
+    """(G, E) booleans: :func:`lights_grid` for every grid and emitter (the direct test vectorised)."""
+    lit = direct_matrix(emitters, grids, covers)
+    if enc.has_specular:
+        for k, g in enumerate(grids):
+            for i in np.nonzero(~lit[k])[0]:
+                lit[k, i] = lights_grid(emitters[i], g, covers[k], enc)
+    return lit
+
+
+def reference_drop_m(emitter: Emitter, grids: tuple[Grid, ...], lit) -> float | None:
+    """The emitter's smallest drop to a grid it lights (``lit``: one boolean per grid): the cull tolerance is set
+    there."""
+    drops = [emitter.z_m - g.z_m for g, on in zip(grids, lit, strict=True) if on]
     return min(drops, default=None)
 
 
@@ -113,14 +125,15 @@ def fixture_on_grid(
     enc: Enclosure,
     boxes: tuple[Box, ...],
     ref_drop_m: float | None = None,
-    cover_m: float = np.inf,
+    cover: Box | None = None,
 ):
-    """(direct Patch or None, specular image map or None) of one emitter on one grid."""
-    if not lights_grid(emitter, grid, cover_m):
-        return None, None
-    direct = direct_patch(emitter, grid, boxes, reference_drop_m=ref_drop_m)
+    """(direct Patch or None, specular image map or None) of one emitter on one grid under ``cover``."""
+    if hangs_below(emitter, cover):
+        direct = direct_patch(emitter, grid, boxes, reference_drop_m=ref_drop_m)
+    else:
+        direct = sideways_patch(emitter, grid, boxes, cover, ref_drop_m)
     mirrors = enc.has_specular or enc.mirror_reflectance("ceiling") > 0
-    spec = specular_map(emitter, grid, enc, boxes) if mirrors else None
+    spec = specular_map(emitter, grid, enc, boxes, cover=cover) if mirrors else None
     return direct, spec
 
 
@@ -144,15 +157,16 @@ def compute_scene(
     if enc.has_diffuse and emitters:
         e_patch = sum(_fixture_on_patches(e, enc, blockers, cuts) for e in emitters)
         exitance = radiosity_operator(enc, blockers, cuts) @ e_patch
-    covers = {g: covering_height_m(g, boxes) for g in grids}
-    ref = {e: reference_drop_m(e, grids, covers) for e in emitters}
-    for g in grids:
+    covers = tuple(covering_box(g, boxes) for g in grids)
+    lit = lights_matrix(emitters, grids, covers, enc)
+    drops = np.array([[e.z_m - g.z_m for e in emitters] for g in grids]).reshape(lit.shape)
+    nearest = np.where(lit, drops, np.inf).min(axis=0, initial=np.inf)
+    ref = [float(d) if np.isfinite(d) else None for d in nearest]
+    for k, g in enumerate(grids):
         direct = np.zeros((g.ny, g.nx), dtype=np.float32)
         reflected = np.zeros_like(direct)
-        for e in emitters:
-            if not lights_grid(e, g, covers[g]):
-                continue
-            patch, spec = fixture_on_grid(e, g, enc, boxes, ref[e], covers[g])
+        for i in np.nonzero(lit[k])[0]:
+            patch, spec = fixture_on_grid(emitters[i], g, enc, boxes, ref[i], covers[k])
             if isinstance(patch, Patch):
                 patch.add_into(direct)
             if spec is not None:
@@ -165,4 +179,6 @@ def compute_scene(
 
 def clear_caches() -> None:
     fixture_on_grid.cache_clear()
+    _local_sideways.cache_clear()
+    _images_reach.cache_clear()
     _fixture_on_patches.cache_clear()

@@ -20,6 +20,7 @@ from app.engine.distributions import sends_upward
 from app.engine.emitters import world_nodes
 from app.engine.penumbra import unit_irradiance
 from app.engine.scene import Box, Emitter, Enclosure, Grid
+from app.engine.tier_cover import images_past_cover
 
 IMAGE_RELATIVE = 1e-6
 MAX_IMAGE_ORDER = 60
@@ -123,12 +124,25 @@ def _bilinear(xc, yc, vals, xf, yf):
     return rows[j0] * (1 - fy)[:, None] + rows[j1] * fy[:, None]
 
 
-def specular_map(emitter: Emitter, grid: Grid, enc: Enclosure, boxes: tuple[Box, ...] = (), dtype=np.float32):
-    """Irradiance [µmol m⁻² s⁻¹] on ``grid`` from the emitter's mirror images (shape ny × nx)."""
+def specular_map(
+    emitter: Emitter,
+    grid: Grid,
+    enc: Enclosure,
+    boxes: tuple[Box, ...] = (),
+    dtype=np.float32,
+    cover: Box | None = None,
+):
+    """Irradiance [µmol m⁻² s⁻¹] on ``grid`` from the emitter's mirror images (shape ny × nx).
+
+    cover : the box covering the grid (a shelf over a tier); images it hides whole are skipped
+        (app/engine/tier_cover.py), the rest are shadow-tested against every box.
+    """
     out = np.zeros((grid.ny, grid.nx), dtype=dtype)
     if emitter.z_m <= grid.z_m:
         return out
-    images = image_list(emitter, grid, enc)
+    images = images_past_cover(emitter, grid, enc, cover, image_list(emitter, grid, enc))
+    # Under a shelf, only the wall images that pass it send their ceiling images too (a covered tier's light
+    # from a mirror ceiling is then slightly low; such rooms are rare: an upward fixture beside a rack).
     ceiling = ceiling_images(emitter, images, enc)
     if not images and not ceiling:
         return out

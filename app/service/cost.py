@@ -9,7 +9,8 @@ patches) and turned into seconds with per-operation times measured on a 2-core m
 Terms counted (each "evaluation" is one quadrature node against one map point):
 
 - direct light: for each fixture and each zone it lights, the map points within its cull radius x its nodes;
-  identical fixtures at the same place within a map cell share one footprint, as in the engine;
+  identical fixtures at the same place within a map cell share one footprint, as in the engine; light entering a
+  covered tier past its shelf: its samples x nodes x boxes, once per shared frame, as in the engine;
 - mirror images (specular walls): near images on the (strided) map, far images on a 9 x 9 map, and one
   full-map add per fixture;
 - wall patches (matt walls): each fixture onto the wall patches, the patch exchange and its solve, and the
@@ -24,11 +25,13 @@ from dataclasses import dataclass, field, replace
 import numpy as np
 
 from app.engine import mirror_images as rf
-from app.engine.compute import covering_height_m, lights_grid, reference_drop_m
+from app.engine.compute import lights_grid, reference_drop_m
 from app.engine.direct import CULL_RELATIVE, cull_radius_m, nearest_distance_m, relevant_boxes
 from app.engine.emitters import local_nodes
 from app.engine.radiosity import wall_patches
 from app.engine.scene import Emitter, Grid
+from app.engine.sideways import shared_frame, sideways_plan
+from app.engine.tier_cover import covering_box, hangs_below, images_past_cover
 from app.room.models import Room
 from app.service.scene_builder import build_scene
 
@@ -134,8 +137,27 @@ def _direct_terms(e: Emitter, g: Grid, boxes, ref_drop: float | None, units: dic
         units["direct_evaluations"] += _node_count(e, dz) * pts
 
 
-def _image_terms(e: Emitter, g: Grid, enc, units: dict) -> None:
-    images = rf.image_list(e, g, enc)
+def _sideways_terms(e: Emitter, g: Grid, boxes, ref_drop: float | None, units: dict, shared: set, cover) -> None:
+    """Light entering a covered tier past its shelf: one computation per shared frame (app/engine/sideways.py)."""
+    key = shared_frame(e, g, boxes, cover, ref_drop)
+    if key is None or key in shared:
+        return
+    shared.add(key)
+    local, frame, near, local_cover, ref = key
+    dz = local.z_m - frame.z_m
+    plan = sideways_plan(local, frame, near, local_cover, CULL_RELATIVE * (dz / min(ref or dz, dz)) ** 2)
+    if plan is None:
+        return
+    (i0, i1, j0, j1), (sx, sy), nearest, near = plan
+    samples = math.ceil((i1 - i0) / sx) * math.ceil((j1 - j0) / sy)
+    nodes = _node_count(e, nearest)  # the penumbra integration's cells: fine nodes only along shadow edges
+    units["footprint_adds"] += (i1 - i0) * (j1 - j0)
+    units["direct_evaluations"] += nodes * samples
+    units["shadow_evaluations"] += nodes * samples * len(near)
+
+
+def _image_terms(e: Emitter, g: Grid, enc, units: dict, cover=None) -> None:
+    images = images_past_cover(e, g, enc, cover, rf.image_list(e, g, enc))
     if not images:
         return
     points = g.nx * g.ny
@@ -160,17 +182,21 @@ def estimate(room: Room) -> CostEstimate:
     scene = build_scene(room)
     emitters, grids, enc, boxes = scene.emitters, scene.grids, scene.enclosure, scene.boxes
     units = dict.fromkeys(NS_PER, 0.0)
-    covers = {g: covering_height_m(g, boxes) for g in grids}
+    covers = {g: covering_box(g, boxes) for g in grids}
     shared: set = set()
     specular = enc.has_specular
     for e in emitters:
-        ref = reference_drop_m(e, grids, covers)
-        for g in grids:
-            if not lights_grid(e, g, covers[g]):
+        lit = [lights_grid(e, g, covers[g], enc) for g in grids]
+        ref = reference_drop_m(e, grids, lit)
+        for g, on in zip(grids, lit, strict=True):
+            if not on:
                 continue
-            _direct_terms(e, g, boxes, ref, units, shared)
+            if hangs_below(e, covers[g]):
+                _direct_terms(e, g, boxes, ref, units, shared)
+            else:
+                _sideways_terms(e, g, boxes, ref, units, shared, covers[g])
             if specular:
-                _image_terms(e, g, enc, units)
+                _image_terms(e, g, enc, units, covers[g])
     points = sum(g.nx * g.ny for g in grids)
     if enc.has_diffuse and emitters:
         n_patches = len(wall_patches(enc).areas)
