@@ -59,7 +59,7 @@ def test_forty_edits_of_one_bench_stay_under_600_mib():
     must stay bounded by the caches' byte budgets (issue limit: 600 MiB), not grow with the edit count."""
     script = textwrap.dedent(
         f"""
-        import json, resource, sys
+        import json, sys
         from app.room.roomfile import parse_room_file
         from app.service.analysis import analyse
         from app.engine import cache
@@ -69,7 +69,10 @@ def test_forty_edits_of_one_bench_stay_under_600_mib():
             z["width_m"] = round(z["width_m"] * (0.97 if i % 2 else 1.02), 4)
             z["x_m"] = round(z["x_m"] + (0.01 if i % 2 else -0.005), 4)
             analyse(parse_room_file(json.dumps(doc).encode()))
-        peak = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024
+        # VmHWM: this process's own peak. ru_maxrss would start from the parent's resident size at fork
+        # (Linux keeps it across exec), so a big test session made this child look big.
+        hwm = next(line for line in open("/proc/self/status") if line.startswith("VmHWM:"))
+        peak = int(hwm.split()[1]) / 1024
         budget = sum(c.max_bytes for c in cache.REGISTRY.values()) / 2**20
         print(json.dumps({{"peak_mib": peak, "cached_mib": cache.total_bytes() / 2**20, "budget_mib": budget}}))
         """
