@@ -124,6 +124,56 @@ def _bilinear(xc, yc, vals, xf, yf):
     return rows[j0] * (1 - fy)[:, None] + rows[j1] * fy[:, None]
 
 
+def _near_image(emitter: Emitter, grid: Grid, enc: Enclosure, image, mirror, fine, near_boxes, dtype) -> np.ndarray:
+    """One near image's irradiance on the whole grid (ny × nx), shadowed by the boxes and their mirror copies."""
+    i, j, w = image
+    xs, ys = grid.x_m, grid.y_m
+    fold = (enc.width_m, enc.length_m)
+    img = replace(
+        emitter,
+        x_m=float(mirror_coordinate(emitter.x_m, i, enc.width_m)),
+        y_m=float(mirror_coordinate(emitter.y_m, j, enc.length_m)),
+    )
+    nearest = nearest_distance_m(img, grid)
+    nodes, flux = world_nodes(emitter, nearest)
+    # An image is at least `nearest` away from every point, so its field is smooth on that
+    # scale: sample it every nearest/8 and interpolate.
+    step = max(1, int(nearest / (IMAGE_SAMPLES_PER_DISTANCE * grid.spacing_m)))
+    sx, sy = _strided(xs, step), _strided(ys, step)
+    sgx, sgy = np.meshgrid(sx, sy)
+    pts = fine if step == 1 else np.column_stack([sgx.ravel(), sgy.ravel(), np.full(sgx.size, grid.z_m)])
+    e = irradiance_from_nodes(
+        pts,
+        _mirror_nodes(nodes, i, j, enc),
+        w * flux,
+        emitter.distribution,
+        emitter.rotation_deg,
+        mirror=mirror,  # a mirrored image's aim is mirrored too: its rays are read in the real frame
+        dtype=dtype,
+        tilt_deg=emitter.tilt_deg,
+        aim_deg=emitter.aim_deg,
+    ).reshape(sgy.shape)
+    if near_boxes:
+        # The light the boxes (and their mirror copies) take away, on the same samples: an image's
+        # penumbrae are as wide as its distance allows, so they interpolate like its open-air field.
+        lit = e.ravel().astype(np.float64)
+        relight_shadowed(
+            lit,
+            pts,
+            emitter,
+            nearest,
+            near_boxes,
+            w * emitter.flux_umol_s,
+            (i, j),
+            fold,
+            mirror,
+            IMAGE_SHADOW_SUBDIVISION,
+        )
+        e = lit.reshape(e.shape).astype(dtype)
+    e = e if step == 1 else _bilinear(sx, sy, e, xs, ys).astype(dtype)
+    return e
+
+
 def specular_map(
     emitter: Emitter,
     grid: Grid,
@@ -155,56 +205,13 @@ def specular_map(
     cgx, cgy = np.meshgrid(xc, yc)
     coarse = np.column_stack([cgx.ravel(), cgy.ravel(), np.full(cgx.size, grid.z_m)])
     far_sum = np.zeros(coarse.shape[0])
-    fold = (enc.width_m, enc.length_m)
     far: dict[tuple[float, float], list[tuple[int, int, float]]] = {}
     for i, j, w in images:
         mirror = (-1.0 if i % 2 else 1.0, -1.0 if j % 2 else 1.0)
         if max(abs(i), abs(j)) > NEAR_ORDER:
             far.setdefault(mirror, []).append((i, j, w))
             continue
-        img = replace(
-            emitter,
-            x_m=float(mirror_coordinate(emitter.x_m, i, enc.width_m)),
-            y_m=float(mirror_coordinate(emitter.y_m, j, enc.length_m)),
-        )
-        nearest = nearest_distance_m(img, grid)
-        nodes, flux = world_nodes(emitter, nearest)
-        # An image is at least `nearest` away from every point, so its field is smooth on that
-        # scale: sample it every nearest/8 and interpolate.
-        step = max(1, int(nearest / (IMAGE_SAMPLES_PER_DISTANCE * grid.spacing_m)))
-        sx, sy = _strided(xs, step), _strided(ys, step)
-        sgx, sgy = np.meshgrid(sx, sy)
-        pts = fine if step == 1 else np.column_stack([sgx.ravel(), sgy.ravel(), np.full(sgx.size, grid.z_m)])
-        e = irradiance_from_nodes(
-            pts,
-            _mirror_nodes(nodes, i, j, enc),
-            w * flux,
-            emitter.distribution,
-            emitter.rotation_deg,
-            mirror=mirror,  # a mirrored image's aim is mirrored too: its rays are read in the real frame
-            dtype=dtype,
-            tilt_deg=emitter.tilt_deg,
-            aim_deg=emitter.aim_deg,
-        ).reshape(sgy.shape)
-        if near_boxes:
-            # The light the boxes (and their mirror copies) take away, on the same samples: an image's
-            # penumbrae are as wide as its distance allows, so they interpolate like its open-air field.
-            lit = e.ravel().astype(np.float64)
-            relight_shadowed(
-                lit,
-                pts,
-                emitter,
-                nearest,
-                near_boxes,
-                w * emitter.flux_umol_s,
-                (i, j),
-                fold,
-                mirror,
-                IMAGE_SHADOW_SUBDIVISION,
-            )
-            e = lit.reshape(e.shape).astype(dtype)
-        e = e if step == 1 else _bilinear(sx, sy, e, xs, ys).astype(dtype)
-        out += np.maximum(e, 0.0)
+        out += np.maximum(_near_image(emitter, grid, enc, (i, j, w), mirror, fine, near_boxes, dtype), 0.0)
     for i, j, w in ceiling:
         far.setdefault((-1.0 if i % 2 else 1.0, -1.0 if j % 2 else 1.0, -1.0), []).append((i, j, w))
     # The far images of one mirror parity form one batch of point sources; their shadows fold the
