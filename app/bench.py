@@ -21,7 +21,7 @@ from pathlib import Path
 import numpy as np
 
 from app.assets import asset_dir
-from app.bench_scenes import sample, side_lit_rack, tent_with_filter_and_fan, white_room
+from app.bench_scenes import rack_beside_floor, sample, side_lit_rack, tent_with_filter_and_fan, white_room
 from app.engine import cache as engine_cache
 from app.engine import compute, direct
 from app.engine.aim import aim_matrix
@@ -227,6 +227,7 @@ ENGINE_SCENES = (
     ("rack 2x4 ft, 3 tiers, 6 strips, 1 in grid", lambda: sample("three-tier-greens-rack")),
     ("tent 4x4 ft + carbon filter + clip fan, reflective film", tent_with_filter_and_fan),
     ("white-painted room 3 x 3.6 m, open doorway, 2.5 cm grid", white_room),
+    ("film tent 1.2 x 1.2 m, 2-shelf rack beside open floor, bar array over the floor", rack_beside_floor),
     ("rack 1.2 x 0.6 m, 3 tiers lit from the front by bars tilted 55 deg, film bay", side_lit_rack),
 )
 

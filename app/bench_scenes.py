@@ -1,6 +1,6 @@
 """The benchmark's scenes beyond the plain samples: a sample room as an engine scene, the sample tent with a
-carbon filter and a clip fan, a white-painted room with an open doorway, and a rack lit from its open front by
-tilted bars (``python -m app.bench``)."""
+carbon filter and a clip fan, a white-painted room with an open doorway, a rack beside open floor in a film tent,
+and a rack lit from its open front by tilted bars (``python -m app.bench``)."""
 
 from __future__ import annotations
 
@@ -73,3 +73,23 @@ def side_lit_rack() -> EngineScene:
         for k, z in enumerate(tiers)
     )
     return EngineScene(bars, grids, enc, boards)
+
+
+def rack_beside_floor() -> EngineScene:
+    """A film-wrapped 1.2 × 1.2 m tent (ρ = 0.95): a two-shelf rack 0.6 m deep fills its left half, a strip under
+    the upper shelf lights the lower tier and one on the shelf the upper tier; a four-bar array hangs over the
+    open floor of the right half, above the shelf, so it reaches the lower tier sideways and by the mirrors."""
+    enc = Enclosure(1.2, 1.2, 2.0, "specular", 0.95)
+    boards = (Box(0.0, 0.0, 0.05, 0.6, 1.2, 0.08), Box(0.0, 0.0, 0.7, 0.6, 1.2, 0.73))
+    grids = (
+        Grid("lower tier", 0.0, 0.0, 0.6, 1.2, 0.3, 0.0254),
+        Grid("upper tier", 0.0, 0.0, 0.6, 1.2, 0.95, 0.0254),
+        Grid("floor", 0.6, 0.0, 0.6, 1.2, 0.3, 0.0254),
+    )
+    strip = cosine_power(1.5)
+    emitters = (
+        Emitter("lower", 0.3, 0.6, 0.69, 80.0, strip, "bar", 1.0, 0.03, rotation_deg=90),
+        Emitter("upper", 0.3, 0.6, 1.3, 80.0, strip, "bar", 1.0, 0.03, rotation_deg=90),
+        Emitter("bars", 0.9, 0.6, 1.1, 300.0, lambertian(), "bar_array", 0.5, 0.4, 4, 0.03, rotation_deg=90),
+    )
+    return EngineScene(emitters, grids, enc, boards)
