@@ -145,8 +145,9 @@ def sideways_plan(emitter: Emitter, grid: Grid, boxes, cover: Box, relative: flo
     if band is None:
         return None
     xs, ys = grid.x_m, grid.y_m
-    i0, i1 = _window(xs, band[0], band[2])
-    j0, j1 = _window(ys, band[1], band[3])
+    tol = 1e-9  # a map row on the shelf's open edge is in the band (the shared frame rounds to 1e-9 m)
+    i0, i1 = _window(xs, band[0] - tol, band[2] + tol)
+    j0, j1 = _window(ys, band[1] - tol, band[3] + tol)
     if i0 >= i1 or j0 >= j1:
         return None
     part = replace(grid, x0_m=band[0], y0_m=band[1], width_m=band[2] - band[0], length_m=band[3] - band[1])
@@ -174,7 +175,8 @@ def _local_sideways(emitter: Emitter, grid: Grid, boxes, cover: Box, reference_d
     gx, gy = np.meshgrid(sx, sy)
     pts = np.column_stack([gx.ravel(), gy.ravel(), np.full(gx.size, grid.z_m)])
     nodes, flux = world_nodes(emitter, nearest)
-    open_air = irradiance_from_nodes(pts, nodes, flux, emitter.distribution, emitter.rotation_deg)
+    aim = {"tilt_deg": emitter.tilt_deg, "aim_deg": emitter.aim_deg}  # a tilted bar is read in its own frame
+    open_air = irradiance_from_nodes(pts, nodes, flux, emitter.distribution, emitter.rotation_deg, **aim)
     # Nearly every sample lies in some box's shadow: all go to the penumbra integration (no candidate pass).
     lit = (
         shadowed_irradiance(pts, emitter, nearest, near, emitter.flux_umol_s, subdivision=SIDEWAYS_SHADOW_SUBDIVISION)

@@ -189,3 +189,32 @@ def test_racks_light_each_other_across_the_aisle_symmetrically_and_share_the_wor
     assert maps["r1-t0"].mean() > maps["r0-t0"].mean() > maps["r0-t2"].mean()  # two neighbours, one, none above
     stats = compute._local_sideways.cache.stats()
     assert stats.hits > 0  # identical racks and tiers share their sideways footprints
+
+
+def test_the_map_row_on_a_shelfs_open_edge_gets_the_light_that_enters_there():
+    """A thin bar in front of a tier's open edge, above its shelf, tilted toward the tier: the row of map points
+    lying exactly under the shelf's edge is lit (it was dropped from the lit band by a rounding of the shared
+    frame). Reference: inverse-square sum over 400 points along the bar, cos^1.5 about its tilted axis, each
+    segment tested against the shelf with a plain slab test (Kay & Kajiya 1986)."""
+    from app.engine.aim import aim_axis
+
+    enc = Enclosure(1.2, 1.2, 2.0, "absorbing", 0.0)
+    shelf = (0.0, 0.6, 0.575, 1.2, 1.2, 0.6)
+    bar = Emitter("bar", 0.6, 0.45, 0.95, 250.0, cosine_power(1.5), "bar", 1.2, 0.002, tilt_deg=55.0, aim_deg=90.0)
+    g = Grid("tier", 0.0, 0.6, 1.2, 0.6, 0.05, 0.025)
+    ours = compute_scene((bar,), (g,), enc, (Box(*shelf),))[0].ppfd
+    gx, gy = np.meshgrid(g.x_m, g.y_m)
+    pts = np.column_stack([gx.ravel(), gy.ravel(), np.full(gx.size, g.z_m)])
+    axis = aim_axis(55.0, 90.0)
+    ref = np.zeros(pts.shape[0])
+    for x in (np.arange(400) + 0.5) / 400 * 1.2:
+        q = np.array([x, 0.45, 0.95])
+        d = pts - q
+        r = np.linalg.norm(d, axis=1)
+        e = 250.0 / 400 * 2.5 / (2 * np.pi) * np.maximum(d @ axis / r, 0) ** 1.5 * np.maximum(-d[:, 2] / r, 0) / r**2
+        e[_slab_entry(q, d, shelf) < 1.0 - 1e-9] = 0.0  # the segment enters the shelf before its end
+        ref += e
+    ref = ref.reshape(gx.shape)
+    assert ref[0].mean() > 30.0  # the edge row is well lit in reality
+    assert ours[0].mean() == pytest.approx(ref[0].mean(), rel=0.03)
+    assert ours.mean() == pytest.approx(ref.mean(), rel=0.03)
