@@ -82,7 +82,7 @@ def fixture_type_from(
         "ppf_umol_s": round(ppf, 3),
         "power_w": round(float(power), 3),
         "weight_kg": None,
-        "notes": f"Imported from a {ph.format.upper()} file; " + "; ".join(ph.notes),
+        "notes": f"Imported from an {ph.format.upper()} file; " + "; ".join(ph.notes),
     }
     report = {
         "zonal_flux": total,

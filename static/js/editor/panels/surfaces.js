@@ -69,7 +69,10 @@ export function wireSurfaces() {
       if (!RETURNS_LIGHT.has(kindNow)) return showFieldError(refl, `an ${kindNow} ${NAMES[s]} returns no light`);
       const pct = numberOf(refl, 0, 100, `the ${NAMES[s]}'s reflectance (%)`);
       if (pct === null) return;
-      if (tryCommit(refl, (r) => perSurface(r, s, (old) => ({ ...old, reflectance: round4(pct / 100), label: "" })))) {
+      if (tryCommit(refl, (r) => perSurface(r, s, (old) => ({
+        // A changed reflectance is no longer the named finish; the same one typed again keeps its name.
+        ...old, reflectance: round4(pct / 100), label: round4(pct / 100) === old.reflectance ? old.label : "",
+      })))) {
         clearFieldError(refl);
       }
     });
