@@ -199,6 +199,11 @@ $("cycle-add").addEventListener("click", (ev) => {
 });
 
 // ------------------------------------------------------------ greenhouse
+// Altitude in feet in an imperial room, metres otherwise (the room file keeps metres).
+const ALT_FT = units === "imperial";
+const altShown = (m) => (ALT_FT ? Math.round(m / Units.M_PER_FT) : m);
+const altMetres = (v) => (ALT_FT ? Math.round(v * Units.M_PER_FT * 10) / 10 : v);
+
 function ghForm(z, i) {
   const g = z.greenhouse;
   const opt = (v, label, sel) => `<option value="${esc(v)}" ${sel ? "selected" : ""}>${esc(label)}</option>`;
@@ -209,12 +214,18 @@ function ghForm(z, i) {
     <label for="gh-place-${i}">Place</label><select id="gh-place-${i}" name="place">${opt("", "latitude and longitude below", !g.place)}${Object.keys(page.places).map((p) => opt(p, p, g.place === p)).join("")}</select>
     <label for="gh-lat-${i}">Latitude (°, north +)</label><input id="gh-lat-${i}" name="latitude_deg" type="number" step="0.01" value="${g.latitude_deg}">
     <label for="gh-lon-${i}">Longitude (°, east +)</label><input id="gh-lon-${i}" name="longitude_deg" type="number" step="0.01" value="${g.longitude_deg}">
-    <label for="gh-alt-${i}">Altitude (m)</label><input id="gh-alt-${i}" name="altitude_m" type="number" value="${g.altitude_m}">
+    <label for="gh-alt-${i}">Altitude (${ALT_FT ? "ft" : "m"})</label><input id="gh-alt-${i}" name="altitude_m" type="number" value="${altShown(g.altitude_m)}" data-metres="${g.altitude_m}">
     <label for="gh-sky-${i}">Share of clear-sky sun reaching the site (%; clouds)</label><input id="gh-sky-${i}" name="sky_share" type="number" min="1" max="100" value="${Math.round(g.sky_share * 100)}">
     <label for="gh-target-${i}">Target DLI (blank: the bottom of the crop's band)</label><input id="gh-target-${i}" name="target_dli" type="number" min="0.1" max="80" step="0.1" value="${g.target_dli ?? ""}">
     </div><p class="small">Or type the outdoor DLI of each month (mol m⁻² d⁻¹, all twelve; leave all empty to use the sun model):</p>
     <div class="row">${typed.map((v, m) => `<label>${MONTHS[m]} <input name="typed" data-month="${m}" type="number" min="0" max="80" step="0.1" value="${v}" style="width:4.5rem"></label>`).join("")}</div>
     <div class="row"><button type="button" data-save-gh>Save the greenhouse settings</button><button type="button" data-drop-gh>Not under glazing</button></div>`;
+}
+function altitudeOf(input) {
+  const v = num(input, "altitude", ALT_FT ? { min: -1312, max: 16404 } : { min: -400, max: 5000 });
+  // Unchanged on screen: keep the stored metres exactly (feet shown are rounded).
+  const stored = Number(input.dataset.metres);
+  return input.dataset.metres !== undefined && v === altShown(stored) ? stored : altMetres(v);
 }
 function readGh(box) {
   const f = (n) => box.querySelector(`[name=${n}]`);
@@ -225,7 +236,7 @@ function readGh(box) {
   return {
     glazing: f("glazing").value, transmission: trans === null ? null : trans / 100, place: f("place").value,
     latitude_deg: num(f("latitude_deg"), "latitude", { min: -66, max: 66 }), longitude_deg: num(f("longitude_deg"), "longitude", { min: -180, max: 180 }),
-    altitude_m: num(f("altitude_m"), "altitude", { min: -400, max: 5000 }), sky_share: num(f("sky_share"), "share of clear-sky sun", { min: 1, max: 100 }) / 100,
+    altitude_m: altitudeOf(f("altitude_m")), sky_share: num(f("sky_share"), "share of clear-sky sun", { min: 1, max: 100 }) / 100,
     outdoor_dli_by_month: filled ? typed.map((v, m) => num({ value: v }, `outdoor DLI month ${m + 1}`, { min: 0, max: 80 })) : null,
     target_dli: num(f("target_dli"), "target DLI", { min: 0.1, max: 80, blank: true }),
   };
@@ -240,7 +251,7 @@ page.greenhouses.forEach((g, i) => {
   });
   box.querySelector("[name=place]").addEventListener("change", (ev) => {
     const p = page.places[ev.target.value];
-    if (p) { box.querySelector("[name=latitude_deg]").value = p[0]; box.querySelector("[name=longitude_deg]").value = p[1]; box.querySelector("[name=altitude_m]").value = p[2]; }
+    if (p) { box.querySelector("[name=latitude_deg]").value = p[0]; box.querySelector("[name=longitude_deg]").value = p[1]; const alt = box.querySelector("[name=altitude_m]"); alt.value = altShown(p[2]); alt.dataset.metres = p[2]; }
   });
   if (g.problem) return;
   window.Plotly.newPlot(`gh-plot-${i}`, [
