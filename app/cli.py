@@ -74,6 +74,7 @@ def _fmt(v, digits=1):
 def _report(args) -> int:
     from app.service.analysis import analyse
     from app.service.exports import grid_csv
+    from app.service.sheet_data import walls_text
 
     try:
         rf = _load(args.file)
@@ -94,8 +95,7 @@ def _report(args) -> int:
         return 0
     r = rf.room
     print(
-        f"{r.name}  ({r.width_m:.2f} x {r.length_m:.2f} m, height {r.height_m:.2f} m; "
-        f"{r.wall_finish.kind} walls, reflectance {r.wall_finish.reflectance:.2f})"
+        f"{r.name}  ({r.width_m:.2f} x {r.length_m:.2f} m, height {r.height_m:.2f} m; walls: {walls_text(r)})"
     )
     print(f"{len(r.fixtures)} fixture(s), {len(r.zones)} zone(s), revision {rf.revision}\n")
     head = f"{'zone':<18}{'crop':<22}{'h/day':>6}{'PPFD avg':>10}{'min':>7}{'max':>7}{'min/avg':>8}{'DLI avg':>8}{'band':>10}{'in band':>8}{'dark':>7}{'hot':>7}"
