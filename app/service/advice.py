@@ -108,7 +108,8 @@ def _ppfd(room: Room, emitters: tuple, index: int) -> np.ndarray:
     return compute_scene(emitters, scene.grids, scene.enclosure, scene.boxes)[index].ppfd.astype(float)
 
 
-def _emitters(room: Room, fixtures, dimming_pct: float | None = None, dz_m: float = 0.0) -> tuple:
+def fixture_emitters(room: Room, fixtures, dimming_pct: float | None = None, dz_m: float = 0.0) -> tuple:
+    """The fixtures that are on as engine emitters, moved up by dz_m, at their own dimming or at ``dimming_pct``."""
     types = {t.id: t for t in room.fixture_types}
     return tuple(
         emitter_for(
@@ -141,8 +142,8 @@ def dimming_candidates(case: ZoneCase, room: Room) -> tuple[list[dict], str]:
     if not case.mine:
         return [], "no fixture lights this zone"
     others = [f for f in room.fixtures if f.on and f.id not in case.ids]
-    base = _ppfd(room, _emitters(room, others), case.index)
-    own = _ppfd(room, _emitters(room, case.mine, 100.0), case.index)
+    base = _ppfd(room, fixture_emitters(room, others), case.index)
+    own = _ppfd(room, fixture_emitters(room, case.mine, 100.0), case.index)
     levels = list(range(MIN_DIMMING_PCT, 101))
     verdicts = [case.verdict(base + own * d / 100) for d in levels]
     now = float(np.mean([f.dimming_pct for f in case.mine]))
@@ -188,7 +189,7 @@ def height_candidates(case: ZoneCase, room: Room) -> tuple[list[dict], str]:
     if not case.mine:
         return [], "no fixture lights this zone"
     others = [f for f in room.fixtures if f.on and f.id not in case.ids]
-    base = _ppfd(room, _emitters(room, others), case.index)
+    base = _ppfd(room, fixture_emitters(room, others), case.index)
     low = min(f.hanging_height_m for f in case.mine)
     high = max(f.hanging_height_m for f in case.mine)
     dz_min = case.zone.canopy_height_m + MIN_FIX_CLEARANCE_M - low
@@ -196,7 +197,7 @@ def height_candidates(case: ZoneCase, room: Room) -> tuple[list[dict], str]:
     if dz_max < dz_min:
         return [], "there is no room to move them"
     steps = sorted({round(float(d), 2) for d in np.linspace(dz_min, dz_max, HEIGHT_STEPS)} - {0.0})
-    feasible = [case.verdict(base + _ppfd(room, _emitters(room, case.mine, dz_m=dz), case.index))["meets_target"]
+    feasible = [case.verdict(base + _ppfd(room, fixture_emitters(room, case.mine, dz_m=dz), case.index))["meets_target"]
                 for dz in steps]
     order = _nearest(steps, feasible, 0.0)
     fixes = [

@@ -12,32 +12,12 @@ from app.engine.metrics import area_weighted_stats, ppfd_for_dli
 from app.room import layout
 from app.room.library import crops_for
 from app.room.models import RoomFile
+from app.service.advice import fixture_emitters
 from app.service.analysis import zone_photoperiod_h
-from app.service.maintained import factor_for
-from app.service.scene_builder import aim_fields, build_scene, emitter_for, zone_grid
+from app.service.scene_builder import build_scene, zone_grid
 
 CURVE_POINTS_PER_SIDE = 60
 LOWEST_ABOVE_CANOPY_M = 0.1
-
-
-def _emitters(room, chosen, dz_m: float, dimming_pct: float | None = None) -> tuple:
-    """The chosen fixtures that are on, moved up by dz_m, at their own dimming or at ``dimming_pct``."""
-    types = {t.id: t for t in room.fixture_types}
-    return tuple(
-        emitter_for(
-            f.id,
-            types[f.type_id],
-            f.x_m,
-            f.y_m,
-            f.hanging_height_m + dz_m,
-            f.rotation_deg,
-            f.dimming_pct if dimming_pct is None else dimming_pct,
-            factor_for(room, types[f.type_id]),
-            **aim_fields(f),
-        )
-        for f in chosen
-        if f.on
-    )
 
 
 def curves(rf: RoomFile, zone_id: str, fixture_ids: tuple[str, ...] = (), steps: int = 12) -> dict[str, Any]:
@@ -67,10 +47,10 @@ def curves(rf: RoomFile, zone_id: str, fixture_ids: tuple[str, ...] = (), steps:
     rows = []
     for h in heights:
         dz = h - lowest
-        s = area_weighted_stats(ppfd(others + _emitters(room, chosen, dz)), grid.cell_area_m2)
+        s = area_weighted_stats(ppfd(others + fixture_emitters(room, chosen, dz_m=dz)), grid.cell_area_m2)
         rows.append({"above_canopy_m": float(h - z.canopy_height_m), "avg": s["avg"], "max": s["max"], "min": s["min"]})
     rest = ppfd(others)
-    own = ppfd(_emitters(room, chosen, 0.0, dimming_pct=100.0))
+    own = ppfd(fixture_emitters(room, chosen, dimming_pct=100.0))
     dims = []
     for d in np.linspace(10, 100, 10):  # every chosen fixture set to d %: PPFD is linear in it
         s = area_weighted_stats(rest + own * d / 100, grid.cell_area_m2)
