@@ -129,6 +129,15 @@ def _shade(e, nodes, p, boxes, fold_m, blocked_only: bool):
     return np.where(hit, e, 0.0) if blocked_only else np.where(hit, 0.0, e)
 
 
+def cull_share(dz_m: float, reference_drop_m: float | None = None) -> float:
+    """The share of an emitter's peak below which its light on a grid dz_m below it is not computed:
+    CULL_RELATIVE of its peak at its nearest canopy (``reference_drop_m``; this drop when not given), so a
+    far-below tier is not computed to a finer absolute tolerance. 1 or more (and dz_m <= 0): nothing is lit."""
+    if dz_m <= 0:
+        return np.inf
+    return CULL_RELATIVE * (dz_m / min(reference_drop_m or dz_m, dz_m)) ** 2
+
+
 def cull_radius_m(dist: Distribution, drop_m: float, relative: float = CULL_RELATIVE, tilted: bool = False) -> float:
     """Horizontal distance beyond which a point emitter's irradiance is below ``relative`` × its peak.
 
@@ -231,9 +240,7 @@ def direct_patch(
     computation and a move only shifts it.
     """
     dz = emitter.z_m - grid.z_m
-    if dz <= 0:
-        return None
-    relative = CULL_RELATIVE * (dz / min(reference_drop_m or dz, dz)) ** 2
+    relative = cull_share(dz, reference_drop_m)
     if relative >= 1.0:
         return None
     reach = cull_radius_m(emitter.distribution, dz, relative, emitter.tilted) + 0.5 * emitter.largest_dimension_m

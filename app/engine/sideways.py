@@ -22,10 +22,10 @@ import numpy as np
 
 from app.engine.cache import MIB, memoise
 from app.engine.direct import (
-    CULL_RELATIVE,
     Patch,
     _window,
     cull_radius_m,
+    cull_share,
     irradiance_from_nodes,
     nearest_distance_m,
     relevant_boxes,
@@ -90,7 +90,7 @@ def shared_frame(emitter: Emitter, grid: Grid, boxes: tuple[Box, ...], cover: Bo
     """
     xs, ys, s = grid.x_m, grid.y_m, grid.spacing_m
     dz = emitter.z_m - grid.z_m
-    relative = CULL_RELATIVE * (dz / min(reference_drop_m or dz, dz)) ** 2 if dz > 0 else 1.0
+    relative = cull_share(dz, reference_drop_m)
     if relative >= 1.0:
         return None
     reach = cull_radius_m(emitter.distribution, dz, relative) + 0.5 * emitter.largest_dimension_m
@@ -160,10 +160,7 @@ def sideways_plan(emitter: Emitter, grid: Grid, boxes, cover: Box, relative: flo
 @memoise("sideways_footprints", max_bytes=96 * MIB)
 def _local_sideways(emitter: Emitter, grid: Grid, boxes, cover: Box, reference_drop_m, dtype=np.float32):
     """:func:`sideways_patch` in the frame where it is shared (grid point next to the emitter, canopy at z = 0)."""
-    dz = emitter.z_m - grid.z_m
-    if dz <= 0:
-        return None
-    relative = CULL_RELATIVE * (dz / min(reference_drop_m or dz, dz)) ** 2
+    relative = cull_share(emitter.z_m - grid.z_m, reference_drop_m)
     if relative >= 1.0:
         return None
     plan = sideways_plan(emitter, grid, boxes, cover, relative)

@@ -26,7 +26,7 @@ import numpy as np
 
 from app.engine import mirror_images as rf
 from app.engine.compute import lights_grid, reference_drop_m
-from app.engine.direct import CULL_RELATIVE, cull_radius_m, nearest_distance_m, relevant_boxes
+from app.engine.direct import cull_radius_m, cull_share, nearest_distance_m, relevant_boxes
 from app.engine.emitters import local_nodes
 from app.engine.radiosity import wall_patches
 from app.engine.scene import Emitter, Grid
@@ -98,7 +98,7 @@ def _node_count(e: Emitter, nearest_m: float, shadowed: bool = False) -> int:
 
 def _direct_terms(e: Emitter, g: Grid, boxes, ref_drop: float | None, units: dict, shared: set) -> None:
     dz = e.z_m - g.z_m
-    relative = CULL_RELATIVE * (dz / min(ref_drop or dz, dz)) ** 2
+    relative = cull_share(dz, ref_drop)
     if dz <= 0 or relative >= 1.0:
         return
     reach = cull_radius_m(e.distribution, dz, relative, e.tilted) + 0.5 * e.largest_dimension_m
@@ -144,8 +144,7 @@ def _sideways_terms(e: Emitter, g: Grid, boxes, ref_drop: float | None, units: d
         return
     shared.add(key)
     local, frame, near, local_cover, ref = key
-    dz = local.z_m - frame.z_m
-    plan = sideways_plan(local, frame, near, local_cover, CULL_RELATIVE * (dz / min(ref or dz, dz)) ** 2)
+    plan = sideways_plan(local, frame, near, local_cover, cull_share(local.z_m - frame.z_m, ref))
     if plan is None:
         return
     (i0, i1, j0, j1), (sx, sy), nearest, near = plan
